@@ -1,0 +1,86 @@
+"""Numbers with units at the edge of the program.
+
+Inside geomgen every number is plain, in the contract's units: mm, g, g/cm^3,
+rpm, degrees, N, g*mm, g*mm^2.  A job number may instead be a string with a
+unit ("2.5 in", "9.2 oz", "0.284 lb/in^3", "4200 rpm"); pint converts it.
+pint is imported only when a string actually appears, so plain-number jobs
+start fast.
+"""
+
+from __future__ import annotations
+
+import math
+from functools import lru_cache
+
+from .errors import BadInput
+
+#: internal unit for each kind of quantity (pint spelling)
+INTERNAL = {
+    "length": "mm",
+    "mass": "g",
+    "density": "g/cm^3",
+    "speed": "rpm",
+    "angle": "deg",
+    "force": "N",
+    "unbalance": "g*mm",
+    "inertia": "g*mm^2",
+    "dimensionless": "",
+}
+
+MM_PER_INCH = 25.4
+G_PER_LB = 453.59237
+N_PER_LBF = 4.4482216152605
+
+
+@lru_cache(maxsize=1)
+def _registry():
+    import pint
+
+    ureg = pint.UnitRegistry()
+    return ureg
+
+
+def to_internal(value, kind: str, where: str) -> float:
+    """`value` (a number or a unit string) as a float in the internal unit of `kind`.
+
+    where : the key path or option named in the error message.
+    Raises BadInput for a non-number, NaN/inf, an unknown unit or a unit of
+    the wrong dimension.
+    """
+    unit = INTERNAL[kind]
+    if isinstance(value, bool):
+        raise BadInput(f"{where}: expected a number or a string with a unit, got {value!r}")
+    if isinstance(value, (int, float)):
+        number = float(value)
+    elif isinstance(value, str):
+        number = _parse(value, unit, kind, where)
+    else:
+        raise BadInput(f"{where}: expected a number or a string with a unit "
+                       f"(e.g. \"2.5 in\"), got {type(value).__name__} {value!r}")
+    if not math.isfinite(number):
+        raise BadInput(f"{where}: must be a finite number, got {value!r}")
+    return number
+
+
+def _parse(text: str, unit: str, kind: str, where: str) -> float:
+    text = text.strip()
+    try:
+        return float(text)  # a number written as a string: internal unit
+    except ValueError:
+        pass
+    import pint
+
+    ureg = _registry()
+    try:
+        quantity = ureg.Quantity(text)
+    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError,
+            AttributeError, ValueError, TypeError, SyntaxError, AssertionError) as exc:
+        raise BadInput(f"{where}: cannot read {text!r} as a {kind} ({exc}); "
+                       f"write a number in {unit or 'plain numbers'} or e.g. \"2.5 in\"") from None
+    if not isinstance(quantity, ureg.Quantity):
+        quantity = ureg.Quantity(float(quantity), "")
+    try:
+        return float(quantity.to(unit).magnitude)
+    except pint.errors.DimensionalityError:
+        raise BadInput(f"{where}: {text!r} is not a {kind} "
+                       f"(has dimension {quantity.dimensionality}; expected something convertible to {unit})") from None
