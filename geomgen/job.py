@@ -12,6 +12,8 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .errors import BadInput
+from .materials import Material, custom, material
+from .units import to_internal
 
 
 @dataclass(frozen=True)
@@ -58,3 +60,380 @@ class Engine:
     def omega(self) -> float:
         """Crank speed at max_rpm, rad/s."""
         return self.max_rpm * 2.0 * math.pi / 60.0
+
+
+@dataclass(frozen=True)
+class KeepOut:
+    """A zone on the web face where nothing may be cut, web frame, mm.
+
+    Either a circle (`center`, `diameter`) or a polygon (`points`).
+    """
+
+    center: tuple[float, float] | None = None
+    diameter: float | None = None
+    points: tuple[tuple[float, float], ...] | None = None
+
+
+@dataclass(frozen=True)
+class WebSpec:
+    """One flywheel web as the job describes it (web frame, mm, g/cm^3)."""
+
+    name: str
+    thickness: float
+    material: Material
+    pin_bore: float
+    main_bore: float = 0.0
+    diameter: float | None = None          # parametric full-circle web ...
+    outline: Path | None = None            # ... or a closed DXF outline
+    outline_units: str | None = None
+    features: tuple = ()
+    share: float = 0.5                     # share of the crank's web target
+
+    @property
+    def density(self) -> float:
+        return self.material.density
+
+
+@dataclass(frozen=True)
+class Correction:
+    """What the shop may do to reach the target."""
+
+    kind: str = "holes"                    # holes | pockets | plugs | auto
+    drill_series: str = "metric"           # "metric", "inch" or "list"
+    drills: tuple[float, ...] = ()         # mm, ascending
+    max_depth: float = 15.0
+    min_wall: float = 3.0
+    pin_wall: float = 6.0
+    through: bool = True
+    keep_out: tuple[KeepOut, ...] = ()
+    plug_material: Material | None = None
+    lighten: float = 0.0                   # g off each web
+    point_angle: float = 118.0             # deg, drill point
+    depth_step: float = 0.05               # mm, the depth a machinist can set
+    tolerance_points: float = 0.5          # balance-factor points (0.5 = the contract's default)
+    iso_grade: float = 6.3                 # ISO 21940-11 G-grade, mm/s
+
+
+@dataclass(frozen=True)
+class Output:
+    stl_tolerance: float = 0.01            # mm, absolute chord
+    stl_angular_tolerance: float = 0.1     # rad
+    sheet_units: str = "mm"                # operations.csv: "mm" or "inch"
+    crank_step: bool = True                # also write crank.step
+    crank_gap: float = 20.0                # mm between the webs' inner faces in crank.step
+
+
+@dataclass(frozen=True)
+class Job:
+    name: str
+    path: Path | None
+    engine: Engine
+    balancer: Balancer | None
+    webs: tuple[WebSpec, ...]
+    correction: Correction
+    output: Output
+    overspeed: float = 1.2                 # plug loads are also shown at overspeed * max_rpm
+
+    @property
+    def tolerance_gmm(self) -> float:
+        """Allowed |ΔU| for the whole crank, g*mm, on each component."""
+        points = self.correction.tolerance_points / 100.0
+        return points * self.engine.m_reciprocating * self.engine.crank_radius
+
+    def target_gmm(self, web: WebSpec) -> tuple[float, float]:
+        """The unbalance this web must carry in its own frame, g*mm (x, y)."""
+        e = self.engine
+        total = -(e.m_rotating + e.balance_factor * e.m_reciprocating) * e.crank_radius
+        return (0.0, web.share * total)
+
+
+# ---------------------------------------------------------------- loading
+
+_TOP = {"name", "engine", "balancer", "web", "webs", "correction", "output", "overspeed"}
+_ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt", "reciprocating", "rotating"}
+_BALANCER = {"share", "offset"}
+_WEB = {"diameter", "outline", "outline_units", "thickness", "material", "density", "pin_bore",
+        "main_bore", "features"}
+_WEBS = _WEB | {"name", "share"}
+_CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
+               "plug_material", "lighten", "point_angle", "depth_step", "tolerance_points", "iso_grade"}
+_OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step", "crank_gap"}
+KINDS = ("holes", "pockets", "plugs", "auto")
+
+
+def _close_match(key: str, allowed: set) -> str:
+    import difflib
+
+    near = difflib.get_close_matches(key, sorted(allowed), n=1)
+    return f" (did you mean {near[0]!r}?)" if near else ""
+
+
+def _table(data, where: str, allowed: set) -> dict:
+    if not isinstance(data, dict):
+        raise BadInput(f"{where}: must be a table, got {type(data).__name__}")
+    for key in data:
+        if key not in allowed:
+            raise BadInput(f"{where}.{key}: unknown key{_close_match(key, allowed)}; "
+                           f"allowed: {', '.join(sorted(allowed))}")
+    return data
+
+
+def _number(table: dict, key: str, where: str, kind: str, *, default=None, lo=None, hi=None,
+            lo_open=False, hi_open=False) -> float:
+    path = f"{where}.{key}" if where else key
+    if key not in table:
+        if default is None:
+            raise BadInput(f"{path}: missing; it is required")
+        return default
+    value = to_internal(table[key], kind, path)
+    low_bad = lo is not None and (value <= lo if lo_open else value < lo)
+    high_bad = hi is not None and (value >= hi if hi_open else value > hi)
+    if low_bad or high_bad:
+        lo_txt = "" if lo is None else f"{'>' if lo_open else '>='} {lo:g}"
+        hi_txt = "" if hi is None else f"{'<' if hi_open else '<='} {hi:g}"
+        rng = " and ".join(t for t in (lo_txt, hi_txt) if t)
+        raise BadInput(f"{path}: {value:g} is out of range; must be {rng}")
+    return value
+
+
+def _bool(table: dict, key: str, where: str, default: bool) -> bool:
+    value = table.get(key, default)
+    if not isinstance(value, bool):
+        raise BadInput(f"{where}.{key}: must be true or false, got {value!r}")
+    return value
+
+
+def _masses(table, where: str) -> dict:
+    if not isinstance(table, dict) or not table:
+        raise BadInput(f"{where}: must be a table of weighed parts in g, e.g. piston = 250.0")
+    out = {}
+    for part, value in table.items():
+        out[part] = _number(table, part, where, "mass", lo=0.0, lo_open=True)
+    return out
+
+
+def _engine(data, where="engine") -> Engine:
+    t = _table(data, where, _ENGINE)
+    stroke = _number(t, "stroke", where, "length", lo=0.0, lo_open=True, hi=1000.0)
+    rod = _number(t, "rod_length", where, "length", lo=0.0, lo_open=True)
+    if rod <= stroke / 2:
+        raise BadInput(f"{where}.rod_length: {rod:g} mm must be longer than stroke/2 = {stroke / 2:g} mm")
+    if "reciprocating" not in t:
+        raise BadInput(f"{where}.reciprocating: missing; list the weighed reciprocating parts in g")
+    if "rotating" not in t:
+        raise BadInput(f"{where}.rotating: missing; list the weighed rotating parts in g")
+    return Engine(
+        stroke=stroke,
+        rod_length=rod,
+        max_rpm=_number(t, "max_rpm", where, "speed", lo=0.0, lo_open=True, hi=100000.0),
+        balance_factor=_number(t, "balance_factor", where, "dimensionless", lo=0.0, hi=1.5),
+        cylinder_tilt=_number(t, "cylinder_tilt", where, "angle", default=0.0, lo=-180.0, hi=180.0),
+        reciprocating=_masses(t["reciprocating"], f"{where}.reciprocating"),
+        rotating=_masses(t["rotating"], f"{where}.rotating"),
+    )
+
+
+def _balancer(data) -> Balancer:
+    t = _table(data, "balancer", _BALANCER)
+    share = _number(t, "share", "balancer", "dimensionless", default=0.5, lo=0.0, hi=1.5)
+    offset = t.get("offset", [0.0, 0.0])
+    if not (isinstance(offset, list) and len(offset) == 2):
+        raise BadInput(f"balancer.offset: must be [x, y] in mm, got {offset!r}")
+    off = tuple(to_internal(v, "length", f"balancer.offset[{i}]") for i, v in enumerate(offset))
+    return Balancer(share=share, offset=off)
+
+
+def _resolve_material(t: dict, where: str) -> Material:
+    if "density" in t and "material" in t:
+        raise BadInput(f"{where}: give 'material' or 'density', not both")
+    if "density" in t:
+        return custom(_number(t, "density", where, "density", lo=0.0, lo_open=True), f"{where}.density")
+    return material(t.get("material", "steel"), f"{where}.material")
+
+
+def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Path) -> WebSpec:
+    from .features import feature_from_table
+
+    has_d, has_o = "diameter" in t, "outline" in t
+    if has_d == has_o:
+        raise BadInput(f"{where}: give exactly one of 'diameter' (a full-circle web) or 'outline' (a DXF file)")
+    thickness = _number(t, "thickness", where, "length", lo=0.0, lo_open=True, hi=200.0)
+    pin_bore = _number(t, "pin_bore", where, "length", lo=0.0, lo_open=True)
+    main_bore = _number(t, "main_bore", where, "length", default=0.0, lo=0.0)
+    r = engine.crank_radius
+    if main_bore and main_bore / 2 + pin_bore / 2 >= r:
+        raise BadInput(f"{where}.main_bore: a {main_bore:g} mm main bore meets the {pin_bore:g} mm pin bore "
+                       f"at {r:g} mm from the axis; need main_bore/2 + pin_bore/2 < stroke/2")
+    diameter = outline = units = None
+    if has_d:
+        diameter = _number(t, "diameter", where, "length", lo=0.0, lo_open=True)
+        if r + pin_bore / 2 >= diameter / 2:
+            raise BadInput(f"{where}.pin_bore: the {pin_bore:g} mm crankpin bore at {r:g} mm from the axis does not "
+                           f"fit inside the {diameter:g} mm web; need stroke/2 + pin_bore/2 < diameter/2")
+    else:
+        if not isinstance(t["outline"], str):
+            raise BadInput(f"{where}.outline: must be a path to a DXF file, got {t['outline']!r}")
+        outline = (base / t["outline"]).resolve()
+        if not outline.is_file():
+            raise BadInput(f"{where}.outline: file not found: {outline}")
+        units = t.get("outline_units")
+        if units is not None and units not in ("mm", "in", "cm", "m"):
+            raise BadInput(f"{where}.outline_units: must be 'mm', 'in', 'cm' or 'm', got {units!r}")
+    raw = t.get("features", [])
+    if not isinstance(raw, list):
+        raise BadInput(f"{where}.features: must be a list of feature tables")
+    features = tuple(feature_from_table(f, where=f"{where}.features[{i}]", thickness=thickness)
+                     for i, f in enumerate(raw))
+    return WebSpec(name=name, thickness=thickness, material=_resolve_material(t, where), pin_bore=pin_bore,
+                   main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units,
+                   features=features, share=share)
+
+
+def _webs(data: dict, engine: Engine, base: Path) -> tuple[WebSpec, ...]:
+    defaults = _table(data.get("web", {}), "web", _WEB)
+    if "webs" not in data:
+        if "web" not in data:
+            raise BadInput("web: missing; describe the webs in [web] (both alike) or [[webs]] (one by one)")
+        return tuple(_web(defaults, "web", n, 0.5, engine, base) for n in ("a", "b"))
+    listed = data["webs"]
+    if not isinstance(listed, list) or len(listed) != 2:
+        raise BadInput("webs: [[webs]] must list exactly two webs (a pressed-up crank has two)")
+    webs, names = [], set()
+    for i, entry in enumerate(listed):
+        where = f"webs[{i}]"
+        t = _table(entry, where, _WEBS)
+        name = str(t.get("name", "ab"[i]))
+        if not name or not all(c.isalnum() or c in "-_" for c in name):
+            raise BadInput(f"{where}.name: {name!r} must be letters, digits, '-' or '_' (it names files)")
+        if name in names:
+            raise BadInput(f"{where}.name: {name!r} is used twice")
+        names.add(name)
+        merged = {**defaults, **{k: v for k, v in t.items() if k not in ("name", "share")}}
+        if "diameter" in t and "outline" not in t:
+            merged.pop("outline", None)
+        if "outline" in t and "diameter" not in t:
+            merged.pop("diameter", None)
+        if "density" in t and "material" not in t:
+            merged.pop("material", None)
+        if "material" in t and "density" not in t:
+            merged.pop("density", None)
+        share = _number(t, "share", where, "dimensionless", default=0.5, lo=0.0, hi=1.0)
+        webs.append(_web(merged, where, name, share, engine, base))
+    total = sum(w.share for w in webs)
+    if abs(total - 1.0) > 1e-9:
+        raise BadInput(f"webs: the shares must add up to 1, they add up to {total:g}")
+    return tuple(webs)
+
+
+def _correction(data) -> Correction:
+    from .drills import series
+
+    t = _table(data, "correction", _CORRECTION)
+    w = "correction"
+    kind = t.get("kind", "holes")
+    if kind not in KINDS:
+        raise BadInput(f"correction.kind: must be one of {', '.join(KINDS)}, got {kind!r}")
+    drills_raw = t.get("drills", "metric")
+    if isinstance(drills_raw, str):
+        drill_series, drills = drills_raw, series(drills_raw)
+    elif isinstance(drills_raw, list) and drills_raw:
+        drill_series = "list"
+        drills = tuple(sorted({to_internal(v, "length", f"correction.drills[{i}]") for i, v in enumerate(drills_raw)}))
+        if drills[0] <= 0:
+            raise BadInput(f"correction.drills: diameters must be > 0 mm, got {drills[0]:g}")
+    else:
+        raise BadInput("correction.drills: must be 'metric', 'inch' or a list of diameters in mm")
+    keep = t.get("keep_out", [])
+    if not isinstance(keep, list):
+        raise BadInput("correction.keep_out: must be a list of circles {x, y, diameter} or polygons {points}")
+    zones = []
+    for i, z in enumerate(keep):
+        zw = f"correction.keep_out[{i}]"
+        if isinstance(z, dict) and set(z) <= {"x", "y", "diameter"} and "diameter" in z:
+            zones.append(KeepOut(center=(_number(z, "x", zw, "length", default=0.0),
+                                         _number(z, "y", zw, "length", default=0.0)),
+                                 diameter=_number(z, "diameter", zw, "length", lo=0.0, lo_open=True)))
+        elif isinstance(z, dict) and set(z) == {"points"} and isinstance(z["points"], list) and len(z["points"]) >= 3:
+            pts = []
+            for j, p in enumerate(z["points"]):
+                if not (isinstance(p, list) and len(p) == 2):
+                    raise BadInput(f"{zw}.points[{j}]: must be [x, y] in mm")
+                pts.append(tuple(to_internal(v, "length", f"{zw}.points[{j}]") for v in p))
+            zones.append(KeepOut(points=tuple(pts)))
+        else:
+            raise BadInput(f"{zw}: must be a circle {{x, y, diameter}} or a polygon {{points = [[x, y], ...]}} (3+ points)")
+    plug_raw = t.get("plug_material", "W-alloy-class-3")
+    if isinstance(plug_raw, str):
+        plug = material(plug_raw, "correction.plug_material")
+    else:
+        plug = custom(to_internal(plug_raw, "density", "correction.plug_material"), "correction.plug_material")
+    return Correction(
+        kind=kind, drill_series=drill_series, drills=drills,
+        max_depth=_number(t, "max_depth", w, "length", default=15.0, lo=0.0, lo_open=True),
+        min_wall=_number(t, "min_wall", w, "length", default=3.0, lo=0.0),
+        pin_wall=_number(t, "pin_wall", w, "length", default=6.0, lo=0.0),
+        through=_bool(t, "through", w, True),
+        keep_out=tuple(zones),
+        plug_material=plug,
+        lighten=_number(t, "lighten", w, "mass", default=0.0, lo=0.0),
+        point_angle=_number(t, "point_angle", w, "angle", default=118.0, lo=60.0, hi=180.0),
+        depth_step=_number(t, "depth_step", w, "length", default=0.05, lo=0.001, hi=1.0),
+        tolerance_points=_number(t, "tolerance_points", w, "dimensionless", default=0.5, lo=0.0, lo_open=True, hi=0.5),
+        iso_grade=_number(t, "iso_grade", w, "dimensionless", default=6.3, lo=0.0, lo_open=True, hi=4000.0),
+    )
+
+
+def _output(data) -> Output:
+    t = _table(data, "output", _OUTPUT)
+    units = t.get("sheet_units", "mm")
+    if units not in ("mm", "inch"):
+        raise BadInput(f"output.sheet_units: must be 'mm' or 'inch', got {units!r}")
+    return Output(
+        stl_tolerance=_number(t, "stl_tolerance", "output", "length", default=0.01, lo=0.0005, hi=1.0),
+        stl_angular_tolerance=_number(t, "stl_angular_tolerance", "output", "dimensionless", default=0.1,
+                                      lo=0.01, hi=1.0),
+        sheet_units=units,
+        crank_step=_bool(t, "crank_step", "output", True),
+        crank_gap=_number(t, "crank_gap", "output", "length", default=20.0, lo=0.0, lo_open=True),
+    )
+
+
+def from_dict(data: dict, *, path: Path | None = None) -> Job:
+    """A validated Job from parsed TOML.  Relative paths resolve against `path`'s folder."""
+    _table(data, "job", _TOP)
+    base = path.parent if path is not None else Path.cwd()
+    if "engine" not in data:
+        raise BadInput("engine: missing; the [engine] table is required")
+    engine = _engine(data["engine"])
+    name = data.get("name", path.stem if path else "job")
+    if not isinstance(name, str):
+        raise BadInput(f"name: must be text, got {name!r}")
+    return Job(
+        name=name,
+        path=path,
+        engine=engine,
+        balancer=_balancer(data["balancer"]) if "balancer" in data else None,
+        webs=_webs(data, engine, base),
+        correction=_correction(data.get("correction", {})),
+        output=_output(data.get("output", {})),
+        overspeed=_number(data, "overspeed", "", "dimensionless", default=1.2, lo=1.0, hi=3.0),
+    )
+
+
+def load(path) -> Job:
+    """Read and validate a job file; every problem is a BadInput naming the file or key."""
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise BadInput(f"{path}: job file not found") from None
+    except (OSError, UnicodeDecodeError) as exc:
+        raise BadInput(f"{path}: cannot read the job file ({exc})") from None
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise BadInput(f"{path}: not valid TOML ({exc})") from None
+    try:
+        return from_dict(data, path=path.resolve())
+    except BadInput as exc:
+        raise BadInput(f"{path.name}: {exc}") from None
