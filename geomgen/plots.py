@@ -1,0 +1,109 @@
+"""Pictures of a balance study (matplotlib, Agg; imported only when called).
+
+The figure reads a `study.study()` result dict, nothing else, so it can be
+redrawn from a saved study.json.
+"""
+
+from __future__ import annotations
+
+import io
+import math
+
+
+def study_figure(result: dict):
+    """The study figure: force locus (polar) beside the balance-factor sweep.
+
+    Returns a matplotlib Figure (not attached to pyplot).
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    inp = result["inputs"]
+    fig = Figure(figsize=(12.5, 6.4))
+    FigureCanvasAgg(fig)
+    polar = fig.add_subplot(1, 2, 1, projection="polar")
+    sweep_ax = fig.add_subplot(1, 2, 2)
+
+    # Polar: 0 at the top = +Y of the crank frame, angles counter-clockwise as
+    # on the webs, so the picture is the crank frame seen from +Z.
+    polar.set_theta_zero_location("N")
+    polar.set_theta_direction(1)
+    fx = [row["force_x_N"] for row in result["cycle"]]
+    fy = [row["force_y_N"] for row in result["cycle"]]
+    phi = [math.atan2(-x, y) for x, y in zip(fx, fy)]
+    mag = [math.hypot(x, y) for x, y in zip(fx, fy)]
+    phi.append(phi[0])
+    mag.append(mag[0])
+    polar.plot(phi, mag, color="tab:blue", lw=1.8, label="residual force over one revolution")
+    rmax = max(max(mag), 1e-9) * 1.15
+    tilt = math.radians(inp["cylinder_tilt_deg"])
+    polar.plot([tilt, tilt], [0.0, rmax], color="tab:red", lw=1.2, ls="--",
+               label="cylinder axis (towards the head)")
+    polar.plot([phi[0]], [mag[0]], "o", color="tab:red", label="force at TDC (0 deg)")
+    polar.plot([phi[90]], [mag[90]], "s", color="tab:green", label="force at 90 deg after TDC")
+    polar.set_ylim(0.0, rmax)
+    polar.set_title("Residual force on the engine at max rpm\n"
+                    "radius: force, N; angle: its direction, deg from +Y (ccw)", fontsize=9.5, pad=14)
+    polar.tick_params(axis="y", labelsize=7.5)
+    polar.legend(loc="upper center", bbox_to_anchor=(0.5, -0.06), ncol=2, fontsize=8, frameon=False)
+
+    bf_axis = [row["balance_factor"] for row in result["sweep"]]
+    has_balancer = inp["balancer"] is not None
+    styles = (("peak_N", "resultant", "black"), ("peak_along_N", "along cylinder", "tab:blue"),
+              ("peak_across_N", "across cylinder", "tab:orange"))
+    for key, label, colour in styles:
+        free = [row[key] for row in result["sweep_no_balancer"]]
+        tag = " (no balancer)" if has_balancer else ""
+        on_top = 3 if key == "peak_N" else 2  # the resultant over what it hides
+        sweep_ax.plot(bf_axis, free, color=colour, lw=1.3, ls="--" if has_balancer else "-",
+                      label=f"peak {label}{tag}", zorder=on_top)
+        if has_balancer:
+            given = [row[key] for row in result["sweep"]]
+            sweep_ax.plot(bf_axis, given, color=colour, lw=1.8, zorder=on_top,
+                          label=f"peak {label} (with balancer, share {inp['balancer']['share']:g})")
+    sweep_ax.axvline(inp["balance_factor"], color="tab:red", lw=1.0,
+                     label=f"job balance factor {inp['balance_factor']:g}")
+    best = result["best_balance_factor"]
+    best_peak = next(row["peak_N"] for row in result["sweep"] if row["balance_factor"] == best)
+    sweep_ax.plot([best], [best_peak], "v", color="black", ms=8,
+                  label=f"smallest peak: BF {best:g}, {best_peak:.0f} N")
+    sweep_ax.set_xlabel("balance factor (share of reciprocating mass), -")
+    sweep_ax.set_ylabel("peak force over one revolution, N")
+    sweep_ax.set_xlim(0.0, 1.0)
+    sweep_ax.set_ylim(bottom=0.0)
+    sweep_ax.grid(True, lw=0.4, alpha=0.6)
+    sweep_ax.set_title(f"Balance-factor sweep at {inp['max_rpm']:g} rpm", fontsize=10)
+    sweep_ax.legend(fontsize=7.5, loc="upper right")
+
+    title = (f"stroke {inp['stroke_mm']:g} mm, rod {inp['rod_length_mm']:g} mm, "
+             f"{inp['max_rpm']:g} rpm, balance factor {inp['balance_factor']:g}, "
+             f"peak {result['peak_N']:.0f} N")
+    if result.get("name"):
+        title = f"{result['name']}: {title}"
+    fig.suptitle(title, fontsize=11, y=0.985)
+    fig.subplots_adjust(left=0.04, right=0.97, top=0.82, bottom=0.17, wspace=0.25)
+    return fig
+
+
+def study_svg(result: dict) -> bytes:
+    """The study figure as SVG bytes; the same result gives the same bytes."""
+    import matplotlib
+
+    fig = study_figure(result)
+    buf = io.BytesIO()
+    # A fixed hash salt and no date keep the SVG byte-stable between runs;
+    # text stays text (fonttype none) so labels are searchable and small.
+    with matplotlib.rc_context({"svg.hashsalt": "geomgen-study", "svg.fonttype": "none"}):
+        fig.savefig(buf, format="svg", metadata={"Date": None})
+    return buf.getvalue()
+
+
+def study_png(result: dict, *, dpi: int = 100) -> bytes:
+    """The study figure as PNG bytes (for reports and for looking at)."""
+    fig = study_figure(result)
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=dpi, metadata={"Software": None})
+    return buf.getvalue()
