@@ -1,0 +1,201 @@
+"""STEP and STL files of web solids, and reading STEP back with its names.
+
+OpenCascade (OCP), cadquery and trimesh are imported inside the functions.
+Every writer takes a folder or path it is given and writes only there (the
+command line writes into a temporary folder and moves it into place).
+
+STEP: AP214, millimetres, one named solid per body/plug, body first.  The
+schema and unit are process-wide settings of OpenCascade, so each export sets
+them and puts the previous values back (craft.md).
+
+STL: binary, one file for the body and one for all plugs.  The shape's old
+triangulation is cleared first (a shape keeps its first mesh), the mesh is
+made with an absolute chord tolerance, then re-read and repaired with trimesh
+(merge vertices, drop the zero-area triangles OpenCascade leaves at cone
+apexes) and written by trimesh; a mesh that is still not a closed volume is
+an error, not a file.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+from .errors import VerificationFailed
+
+#: default absolute chord tolerance (mm) and angular tolerance (rad) of STL meshes
+STL_TOLERANCE_MM = 0.01
+STL_ANGULAR_RAD = 0.1
+
+_STEP_SCHEMA = "AP214IS"
+_STEP_UNIT = "MM"
+
+
+class _StepSettings:
+    """Set the STEP write schema and unit for one export; restore them after."""
+
+    def __enter__(self):
+        from OCP.Interface import Interface_Static
+
+        self._old = (Interface_Static.CVal_s("write.step.schema"), Interface_Static.CVal_s("write.step.unit"))
+        Interface_Static.SetCVal_s("write.step.schema", _STEP_SCHEMA)
+        Interface_Static.SetCVal_s("write.step.unit", _STEP_UNIT)
+        return self
+
+    def __exit__(self, *exc):
+        from OCP.Interface import Interface_Static
+
+        Interface_Static.SetCVal_s("write.step.schema", self._old[0])
+        Interface_Static.SetCVal_s("write.step.unit", self._old[1])
+        return False
+
+
+def _shape(obj):
+    return obj.wrapped if hasattr(obj, "wrapped") else obj
+
+
+def write_step(solids, path) -> Path:
+    """Write named solids to one STEP file.
+
+    solids : sequence of (name, shape) (cadquery Shape or TopoDS_Shape), in
+             the order wanted in the file (body first)
+    path : the file to write
+    """
+    from OCP.IFSelect import IFSelect_RetDone
+    from OCP.STEPCAFControl import STEPCAFControl_Writer
+    from OCP.STEPControl import STEPControl_AsIs
+    from OCP.TCollection import TCollection_ExtendedString
+    from OCP.TDataStd import TDataStd_Name
+    from OCP.TDocStd import TDocStd_Document
+    from OCP.XCAFDoc import XCAFDoc_DocumentTool
+
+    doc = TDocStd_Document(TCollection_ExtendedString("XmlOcaf"))
+    tool = XCAFDoc_DocumentTool.ShapeTool_s(doc.Main())
+    for name, shape in solids:
+        label = tool.AddShape(_shape(shape), False)
+        TDataStd_Name.Set_s(label, TCollection_ExtendedString(str(name)))
+    path = Path(path)
+    with _StepSettings():
+        writer = STEPCAFControl_Writer()
+        writer.SetNameMode(True)
+        if not writer.Transfer(doc, STEPControl_AsIs):
+            raise VerificationFailed(f"{path.name}: the STEP writer refused the shapes")
+        status = writer.Write(str(path))
+    if status != IFSelect_RetDone:
+        raise VerificationFailed(f"{path.name}: the STEP writer failed (status {status})")
+    return path
+
+
+def read_step(path) -> list[tuple[str, object]]:
+    """The top-level named shapes of a STEP file, in file order: (name, TopoDS_Shape)."""
+    from OCP.IFSelect import IFSelect_RetDone
+    from OCP.STEPCAFControl import STEPCAFControl_Reader
+    from OCP.TCollection import TCollection_ExtendedString
+    from OCP.TDataStd import TDataStd_Name
+    from OCP.TDF import TDF_LabelSequence
+    from OCP.TDocStd import TDocStd_Document
+    from OCP.XCAFDoc import XCAFDoc_DocumentTool
+
+    from .errors import BadInput
+
+    doc = TDocStd_Document(TCollection_ExtendedString("XmlOcaf"))
+    reader = STEPCAFControl_Reader()
+    reader.SetNameMode(True)
+    if reader.ReadFile(str(path)) != IFSelect_RetDone or not reader.Transfer(doc):
+        raise BadInput(f"{path}: not a readable STEP file")
+    tool = XCAFDoc_DocumentTool.ShapeTool_s(doc.Main())
+    labels = TDF_LabelSequence()
+    tool.GetFreeShapes(labels)
+    out = []
+    for i in range(1, labels.Length() + 1):
+        label = labels.Value(i)
+        attr = TDataStd_Name()
+        name = (attr.Get().ToExtString() if label.FindAttribute(TDataStd_Name.GetID_s(), attr)
+                else f"shape-{i}")
+        out.append((name, tool.GetShape_s(label)))
+    return out
+
+
+def _compound(shapes):
+    from OCP.BRep import BRep_Builder
+    from OCP.TopoDS import TopoDS_Compound
+
+    comp = TopoDS_Compound()
+    builder = BRep_Builder()
+    builder.MakeCompound(comp)
+    for s in shapes:
+        builder.Add(comp, _shape(s))
+    return comp
+
+
+def repaired_mesh(stl_path):
+    """The STL re-read by trimesh with coincident vertices merged and
+    zero-area triangles dropped (a trimesh.Trimesh)."""
+    import trimesh
+
+    mesh = trimesh.load_mesh(str(stl_path), file_type="stl", process=True)
+    mesh.merge_vertices()
+    mesh.update_faces(mesh.nondegenerate_faces())
+    mesh.remove_unreferenced_vertices()
+    mesh.fix_normals()
+    return mesh
+
+
+def write_stl(shapes, path, *, tolerance: float = STL_TOLERANCE_MM,
+              angular_tolerance: float = STL_ANGULAR_RAD) -> Path:
+    """Mesh `shapes` (one shape or a sequence, written as one mesh) and write
+    a binary STL that re-reads as a closed volume.
+
+    tolerance : absolute chord deviation, mm;  angular_tolerance : rad
+    Raises VerificationFailed if the repaired mesh is not a closed volume.
+    """
+    from OCP.BRepMesh import BRepMesh_IncrementalMesh
+    from OCP.BRepTools import BRepTools
+    from OCP.StlAPI import StlAPI_Writer
+
+    if not (tolerance > 0 and angular_tolerance > 0):
+        from .errors import BadInput
+        raise BadInput(f"stl tolerance: must be > 0 (got {tolerance} mm, {angular_tolerance} rad)")
+    shape = _compound(shapes if isinstance(shapes, (list, tuple)) else [shapes])
+    BRepTools.Clean_s(shape)  # a shape keeps its first triangulation otherwise
+    mesher = BRepMesh_IncrementalMesh(shape, float(tolerance), False, float(angular_tolerance), True)
+    mesher.Perform()
+    if not mesher.IsDone():
+        raise VerificationFailed(f"{Path(path).name}: meshing failed")
+    path = Path(path)
+    fd, raw = tempfile.mkstemp(suffix=".stl", dir=path.parent)
+    os.close(fd)
+    try:
+        writer = StlAPI_Writer()
+        writer.ASCIIMode = False
+        if not writer.Write(shape, raw):
+            raise VerificationFailed(f"{path.name}: the STL writer failed")
+        mesh = repaired_mesh(raw)
+    finally:
+        os.unlink(raw)
+    if not mesh.is_volume:
+        raise VerificationFailed(f"{path.name}: the mesh is not a closed volume after repair "
+                                 f"(watertight={mesh.is_watertight}, winding={mesh.is_winding_consistent})")
+    mesh.export(str(path), file_type="stl")
+    return path
+
+
+def export_web(web, folder, *, tolerance: float = STL_TOLERANCE_MM,
+               angular_tolerance: float = STL_ANGULAR_RAD) -> dict[str, Path]:
+    """Write web-<name>.step, web-<name>.stl and (with plugs) web-<name>-plugs.stl
+    into `folder`; returns {"step": path, "stl": path, "plugs_stl": path?}."""
+    folder = Path(folder)
+    stem = f"web-{web.name}"
+    out = {"step": write_step([(n, s) for n, s, _ in web.solids()], folder / f"{stem}.step"),
+           "stl": write_stl(web.body, folder / f"{stem}.stl", tolerance=tolerance,
+                            angular_tolerance=angular_tolerance)}
+    if web.plugs:
+        out["plugs_stl"] = write_stl([p.shape for p in web.plugs], folder / f"{stem}-plugs.stl",
+                                     tolerance=tolerance, angular_tolerance=angular_tolerance)
+    return out
+
+
+def write_crank_step(solids, path) -> Path:
+    """crank.step from `solid.crank_assembly` output: (name, shape, density)."""
+    return write_step([(n, s) for n, s, _ in solids], path)
