@@ -1,0 +1,368 @@
+"""Closed outlines from a DXF drawing, as exact loops (geomgen.loops).
+
+The drawing's model space is read with ezdxf.  LINE, ARC, CIRCLE,
+LWPOLYLINE / POLYLINE (with bulges), SPLINE and ELLIPSE are taken; other
+entities (text, dimensions, hatches, points ...) are ignored.  Lines and
+arcs stay exact Line / Arc segments; only splines and ellipses are
+flattened, finely enough that the area error stays far below 1e-5.
+
+Arcs are placed where they are drawn: an ARC or CIRCLE lives in its object
+coordinate system (OCS), and one with extrusion (0, 0, -1) — a mirrored arc —
+has its x axis reversed and runs clockwise in the world frame.  The OCS is
+undone here, with ezdxf's own `ocs().to_wcs`.
+
+Open pieces are chained end to end when their ends lie within `gap_tol`
+(mm); a tiny remaining gap is closed by moving the end of an adjoining line
+onto the other end, or by a bridging line between two arcs.  Anything else
+is bad input with the place named: an open loop (the gap and its ends),
+three ends meeting at one point, a self-crossing loop, two outer loops.
+
+Units come from the header variable $INSUNITS; a unitless drawing (0) needs
+the unit from the caller (the job key `outline_units`).  A unit the caller
+gives overrides the header, because the header of many files only carries
+the default of the program that wrote them (ezdxf.new() writes metres).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+import shapely
+
+from .errors import BadInput
+from .loops import Arc, Line, Loop
+
+#: default chaining tolerance, mm: ends closer than this are the same point
+GAP_TOL_MM = 1e-4
+#: chordal deviation used to flatten splines and ellipses, mm
+CURVE_TOL_MM = 2e-5
+#: chordal deviation of the polygons used for validity and containment, mm
+CHECK_CHORD_MM = 1e-3
+
+#: mm per drawing unit for the $INSUNITS codes of the DXF reference
+INSUNITS_MM = {
+    1: 25.4,          # inches
+    2: 304.8,         # feet
+    4: 1.0,           # millimetres
+    5: 10.0,          # centimetres
+    6: 1000.0,        # metres
+    8: 25.4e-6,       # microinches
+    9: 25.4e-3,       # mils
+    10: 914.4,        # yards
+    13: 1e-3,         # micrometres
+    14: 100.0,        # decimetres
+}
+#: units a caller may give for a unitless drawing
+UNIT_NAMES_MM = {"mm": 1.0, "in": 25.4, "inch": 25.4, "cm": 10.0, "m": 1000.0}
+
+
+@dataclass(frozen=True)
+class Outline:
+    """The closed loops of a drawing, in mm.
+
+    outer : Loop, counter-clockwise — the loop that contains all others
+    inner : tuple of Loop, each counter-clockwise — bores and holes inside it
+    mm_per_unit : the drawing unit used, mm
+    source : the file name, for messages
+    """
+
+    outer: Loop
+    inner: tuple
+    mm_per_unit: float
+    source: str
+
+
+# --------------------------------------------------------------------------
+# entities -> pieces
+# --------------------------------------------------------------------------
+
+def _fmt(p) -> str:
+    return f"({p[0]:.6g}, {p[1]:.6g})"
+
+
+def _check_planar(entity, where: str) -> None:
+    ez = entity.dxf.get("extrusion", (0.0, 0.0, 1.0))
+    if abs(abs(float(ez[2])) - 1.0) > 1e-9:
+        raise BadInput(f"{where}: {entity.dxftype()} {entity.dxf.handle} is not drawn in the XY plane "
+                       f"(extrusion {tuple(round(float(v), 6) for v in ez)}); the outline must lie in XY")
+
+
+def _arc_from_entity(entity, scale: float, where: str, full: bool = False) -> Arc:
+    """An ARC or CIRCLE entity as a world-frame Arc (mm), OCS undone."""
+    _check_planar(entity, where)
+    ocs = entity.ocs()
+    c = ocs.to_wcs(entity.dxf.center)
+    r = float(entity.dxf.radius) * scale
+    if not r > 0:
+        raise BadInput(f"{where}: {entity.dxftype()} {entity.dxf.handle} has radius {entity.dxf.radius}; must be > 0")
+    flip = float(entity.dxf.get("extrusion", (0, 0, 1))[2]) < 0  # OCS x axis reversed: arc runs cw in WCS
+    if full:
+        start_ocs, sweep = 0.0, 360.0
+    else:
+        a0 = float(entity.dxf.start_angle)
+        a1 = float(entity.dxf.end_angle)
+        start_ocs = a0
+        sweep = (a1 - a0) % 360.0 or 360.0
+    p0 = ocs.to_wcs((math.cos(math.radians(start_ocs)) * entity.dxf.radius + entity.dxf.center[0],
+                     math.sin(math.radians(start_ocs)) * entity.dxf.radius + entity.dxf.center[1],
+                     entity.dxf.center[2]))
+    start_w = math.degrees(math.atan2(p0[1] - c[1], p0[0] - c[0]))
+    return Arc((c[0] * scale, c[1] * scale), r, start_w, -sweep if flip else sweep)
+
+
+def _curve_points(entity, scale: float) -> np.ndarray:
+    """(n, 2) mm: a SPLINE or ELLIPSE flattened within CURVE_TOL_MM."""
+    tool = entity.construction_tool()
+    pts = np.array([(v.x, v.y) for v in tool.flattening(CURVE_TOL_MM / scale, segments=16)], dtype=float)
+    return pts * scale
+
+
+def _pieces(msp, scale: float, where: str):
+    """Closed loops and open pieces (lists of segments) from model space."""
+    closed: list[Loop] = []
+    open_pieces: list[list] = []
+
+    def add_points(pts):
+        # drop repeated points (zero-length chords) before making lines
+        keep = np.ones(len(pts), dtype=bool)
+        keep[1:] = np.linalg.norm(np.diff(pts, axis=0), axis=1) > 1e-12
+        pts = pts[keep]
+        if len(pts) < 2:
+            return
+        if len(pts) > 3 and math.dist(pts[0], pts[-1]) <= 1e-12:
+            closed.append(Loop.from_points(pts))
+        else:
+            open_pieces.append([Line(pts[i], pts[i + 1]) for i in range(len(pts) - 1)])
+
+    def add_entity(e):
+        kind = e.dxftype()
+        if kind == "LINE":
+            s, t = e.dxf.start, e.dxf.end
+            seg = Line((s[0] * scale, s[1] * scale), (t[0] * scale, t[1] * scale))
+            if seg.length > 1e-12:
+                open_pieces.append([seg])
+        elif kind == "ARC":
+            open_pieces.append([_arc_from_entity(e, scale, where)])
+        elif kind == "CIRCLE":
+            arc = _arc_from_entity(e, scale, where, full=True)
+            # two half arcs, as loops.circle makes them
+            closed.append(Loop((Arc(arc.center, arc.radius, arc.start_deg, 0.5 * arc.sweep_deg),
+                                Arc(arc.center, arc.radius, arc.start_deg + 0.5 * arc.sweep_deg,
+                                    0.5 * arc.sweep_deg))))
+        elif kind in ("LWPOLYLINE", "POLYLINE"):
+            if kind == "POLYLINE" and not (e.is_2d_polyline or e.is_3d_polyline):
+                return  # polyface / polygon meshes are not outlines
+            _check_planar(e, where)
+            segs = []
+            for v in e.virtual_entities():
+                if v.dxftype() == "LINE":
+                    s, t = v.dxf.start, v.dxf.end
+                    line = Line((s[0] * scale, s[1] * scale), (t[0] * scale, t[1] * scale))
+                    if line.length > 1e-12:
+                        segs.append(line)
+                elif v.dxftype() == "ARC":
+                    segs.append(_arc_from_entity(v, scale, where))
+            if segs:
+                open_pieces.extend(_split_polyline(segs))
+        elif kind in ("SPLINE", "ELLIPSE"):
+            if kind == "ELLIPSE":
+                _check_planar(e, where)
+            add_points(_curve_points(e, scale))
+
+    for entity in msp:
+        add_entity(entity)
+    return closed, open_pieces
+
+
+def _split_polyline(segs):
+    """A polyline's segments as one piece, oriented head to tail.
+
+    Virtual ARC entities of a polyline are always ccw in their OCS, so an arc
+    drawn clockwise comes back reversed; turn each to follow the chain.
+    """
+    out = [segs[0]]
+    if len(segs) > 1:
+        # orient the first segment towards the second
+        s0, s1 = segs[0], segs[1]
+        if min(math.dist(s0.start, s1.start), math.dist(s0.start, s1.end)) < \
+           min(math.dist(s0.end, s1.start), math.dist(s0.end, s1.end)):
+            out = [s0.reversed()]
+    for s in segs[1:]:
+        if math.dist(s.end, out[-1].end) < math.dist(s.start, out[-1].end):
+            s = s.reversed()
+        out.append(s)
+    return [out]
+
+
+# --------------------------------------------------------------------------
+# chaining
+# --------------------------------------------------------------------------
+
+def _join(segs: list, nxt) -> None:
+    """Append segment `nxt` to `segs`, closing the small gap between them."""
+    prev = segs[-1]
+    if prev.end == nxt.start:
+        segs.append(nxt)
+    elif isinstance(nxt, Line):
+        segs.append(Line(prev.end, nxt.end))
+    elif isinstance(prev, Line):
+        segs[-1] = Line(prev.start, nxt.start)
+        segs.append(nxt)
+    else:
+        segs.append(Line(prev.end, nxt.start))
+        segs.append(nxt)
+
+
+def _close(segs: list) -> list:
+    """Close the gap between the last segment's end and the first's start."""
+    first, last = segs[0], segs[-1]
+    if last.end == first.start:
+        return segs
+    if isinstance(last, Line) and len(segs) > 1:
+        segs[-1] = Line(last.start, first.start)
+    elif isinstance(first, Line) and len(segs) > 1:
+        segs[0] = Line(last.end, first.end)
+    else:
+        segs.append(Line(last.end, first.start))
+    return segs
+
+
+def _chain(open_pieces: list, gap_tol: float, source: str) -> list[Loop]:
+    """Open pieces joined end to end into closed loops."""
+    loops = []
+    pieces = []
+    for piece in open_pieces:
+        # a piece closing on itself (a closed polyline) is a loop already
+        if len(piece) > 1 and math.dist(piece[0].start, piece[-1].end) <= gap_tol:
+            loops.append(Loop(tuple(_close(list(piece)))))
+        else:
+            pieces.append(piece)
+    if not pieces:
+        return loops
+    ends = np.array([p for piece in pieces for p in (piece[0].start, piece[-1].end)])
+    n = len(ends)
+    dist = np.linalg.norm(ends[:, None, :] - ends[None, :, :], axis=2)
+    dist[np.arange(n), np.arange(n)] = np.inf
+    dist[np.arange(0, n, 2), np.arange(1, n, 2)] = np.inf  # a piece's own two ends
+    dist[np.arange(1, n, 2), np.arange(0, n, 2)] = np.inf
+    near = dist <= gap_tol
+    degree = near.sum(axis=1)
+    free = np.flatnonzero(degree == 0)
+    if free.size:
+        i = int(free[0])
+        others = [j for j in free if j != i]
+        if others:
+            j = min(others, key=lambda k: dist[i, k])
+            raise BadInput(f"{source}: open loop: a gap of {dist[i, j]:.4g} mm between {_fmt(ends[i])} "
+                           f"and {_fmt(ends[j])} (ends closer than {gap_tol:g} mm are joined); close it in the drawing")
+        raise BadInput(f"{source}: open loop: the outline ends at {_fmt(ends[i])} with no other end "
+                       f"within {gap_tol:g} mm; close it in the drawing")
+    branch = np.flatnonzero(degree > 1)
+    if branch.size:
+        raise BadInput(f"{source}: {int(degree[branch[0]]) + 1} ends meet at {_fmt(ends[branch[0]])}; "
+                       "each point of an outline must join exactly two curves (remove doubled or crossing lines)")
+    partner = near.argmax(axis=1)
+    used = np.zeros(len(pieces), dtype=bool)
+    for k in range(len(pieces)):
+        if used[k]:
+            continue
+        used[k] = True
+        segs = list(pieces[k])
+        end_idx = 2 * k + 1
+        while True:
+            j = int(partner[end_idx])
+            other = j // 2
+            if other == k:
+                break
+            if used[other]:
+                raise BadInput(f"{source}: the curves meeting at {_fmt(ends[j])} do not form a simple loop")
+            used[other] = True
+            piece = pieces[other]
+            if j % 2 == 1:  # joined at its end: walk it backwards
+                piece = [s.reversed() for s in reversed(piece)]
+                end_idx = j - 1
+            else:
+                end_idx = j + 1
+            for s in piece:
+                _join(segs, s)
+        loops.append(Loop(tuple(_close(segs))))
+    return loops
+
+
+# --------------------------------------------------------------------------
+# reading
+# --------------------------------------------------------------------------
+
+def _mm_per_unit(doc, units: str | None, source: str) -> float:
+    if units is not None:
+        key = str(units).strip().lower()
+        if key not in UNIT_NAMES_MM:
+            raise BadInput(f"outline_units: must be one of {', '.join(UNIT_NAMES_MM)}, got {units!r}")
+        return UNIT_NAMES_MM[key]
+    code = int(doc.header.get("$INSUNITS", 0))
+    if code == 0:
+        raise BadInput(f"{source}: the drawing is unitless ($INSUNITS = 0); give outline_units = \"mm\" or \"in\"")
+    if code not in INSUNITS_MM:
+        raise BadInput(f"{source}: drawing unit $INSUNITS = {code} is not a length unit geomgen reads "
+                       f"({', '.join(str(k) for k in INSUNITS_MM)}); give outline_units = \"mm\" or \"in\"")
+    return INSUNITS_MM[code]
+
+
+def _valid_polygon(loop: Loop, source: str) -> shapely.Polygon:
+    poly = loop.polygon(CHECK_CHORD_MM)
+    if not poly.is_valid:
+        why = shapely.is_valid_reason(poly)
+        raise BadInput(f"{source}: self-crossing loop ({why}); the loop starting at "
+                       f"{_fmt(loop.segments[0].start)} must not cross itself")
+    return poly
+
+
+def read_outline(path, *, units: str | None = None, gap_tol: float = GAP_TOL_MM,
+                 where: str = "outline") -> Outline:
+    """The outer loop and the inner loops of a DXF drawing, in mm.
+
+    path : the DXF file;  units : "mm" | "in" | "cm" | "m" for a unitless
+    drawing (overrides $INSUNITS when given);  gap_tol : mm, ends closer than
+    this are joined;  where : the job key named in messages.
+    Raises BadInput for a missing or unreadable file and for every fault of
+    the outline (see the module notes).
+    """
+    import ezdxf  # at the edge: only a DXF outline needs it
+
+    path = Path(path)
+    source = f"{where} {path}"
+    if not path.is_file():
+        raise BadInput(f"{source}: file not found")
+    try:
+        doc = ezdxf.readfile(str(path))
+    except (OSError, ezdxf.DXFError, UnicodeDecodeError, ValueError) as exc:
+        raise BadInput(f"{source}: not a readable DXF file ({type(exc).__name__}: {exc})") from None
+    scale = _mm_per_unit(doc, units, source)
+    closed, open_pieces = _pieces(doc.modelspace(), scale, source)
+    loops = closed + _chain(open_pieces, gap_tol, source)
+    if not loops:
+        raise BadInput(f"{source}: no closed outline found (LINE, ARC, CIRCLE, LWPOLYLINE, SPLINE, ELLIPSE)")
+    loops = [loop.oriented(True) for loop in loops]
+    polys = [_valid_polygon(loop, source) for loop in loops]
+    # the outer loop contains every other; containment by area order
+    order = sorted(range(len(loops)), key=lambda i: -polys[i].area)
+    outer_i = order[0]
+    outer_poly = polys[outer_i]
+    inner = []
+    for i in order[1:]:
+        if not outer_poly.contains(polys[i]):
+            if outer_poly.intersects(polys[i]) and not outer_poly.touches(polys[i]):
+                raise BadInput(f"{source}: the loop starting at {_fmt(loops[i].segments[0].start)} crosses "
+                               "the outer loop")
+            raise BadInput(f"{source}: two outer loops: the loop starting at {_fmt(loops[i].segments[0].start)} "
+                           f"lies outside the loop starting at {_fmt(loops[outer_i].segments[0].start)}; "
+                           "draw one web per file")
+        for k in inner:
+            if polys[k].contains(polys[i]):
+                raise BadInput(f"{source}: the loop starting at {_fmt(loops[i].segments[0].start)} lies inside "
+                               f"the bore starting at {_fmt(loops[k].segments[0].start)}; islands are not allowed")
+        inner.append(i)
+    return Outline(loops[outer_i], tuple(loops[i] for i in inner), scale, str(path))

@@ -1,0 +1,235 @@
+"""The web section: its outline and bores as exact loops, and its mass properties.
+
+A web is a prism: a plane section (the outline minus the bores) swept from
+z = 0 (inner face) to z = thickness (outer face), in the contract's web
+frame (crank axis = Z, pin centre at (0, stroke/2)).  Its mass properties
+are exact for lines and arcs (geomgen.loops), so they serve as the reference
+the CAD solid is checked against.
+
+The crankpin bore is part of `bores`: a web's own unbalance is computed with
+its pin bore empty (the crankpin is counted among the rotating parts).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import shapely
+
+from .dxf_outline import GAP_TOL_MM, read_outline
+from .errors import BadInput
+from .loops import AreaMoments, Loop, circle, prism
+from .massprops import MassProps
+
+#: a drawn circle whose centre is this close to the pin position (mm) is the pin bore
+PIN_CENTRE_TOL_MM = 1e-3
+#: a drawn pin bore and the job's `pin_bore` must agree to this, mm
+PIN_DIAMETER_TOL_MM = 1e-3
+#: chordal deviation of the polygons used for checks and the planner, mm
+POLYGON_CHORD_MM = 0.005
+
+
+def _fmt(p) -> str:
+    return f"({p[0]:.6g}, {p[1]:.6g})"
+
+
+@dataclass(frozen=True)
+class WebSection:
+    """One web as a prism of a plane section.
+
+    outer : Loop, counter-clockwise, the rim (mm)
+    bores : tuple of Loop, each stored COUNTER-CLOCKWISE and subtracted: the
+            pin bore, the main bore if any, and holes already in the outline
+    pin_center : (x, y) mm, (0, stroke/2)
+    pin_bore : pin bore diameter, mm
+    thickness : mm;  density_g_cm3 : g/cm^3
+    main_bore : main bore diameter, mm (0 = integral mainshaft)
+    """
+
+    outer: Loop
+    bores: tuple
+    pin_center: tuple
+    pin_bore: float
+    thickness: float
+    density_g_cm3: float
+    main_bore: float = 0.0
+
+    def area_moments(self) -> AreaMoments:
+        """Exact area moments of the section: the outline minus the bores."""
+        total = self.outer.oriented(True).area_moments()
+        for bore in self.bores:
+            total = total - bore.oriented(True).area_moments()
+        return total
+
+    def massprops(self) -> MassProps:
+        """The web as a uniform prism from z = 0 to `thickness` (no features)."""
+        return prism(self.area_moments(), z0=0.0, z1=self.thickness, density_g_cm3=self.density_g_cm3)
+
+    def polygon(self, max_chord_mm: float = POLYGON_CHORD_MM) -> shapely.Polygon:
+        """The section as a shapely Polygon with the bores as interiors
+        (flattened, inscribed: slightly smaller than the exact section)."""
+        outer = self.outer.oriented(True).points(max_chord_mm)
+        holes = [b.oriented(False).points(max_chord_mm) for b in self.bores]
+        return shapely.Polygon(outer, holes)
+
+    @property
+    def rim_radius_min(self) -> float:
+        """Smallest distance from the crank axis to the rim, mm."""
+        ring = shapely.LinearRing(self.outer.points(POLYGON_CHORD_MM))
+        return float(ring.distance(shapely.Point(0.0, 0.0)))
+
+    @property
+    def rim_radius_max(self) -> float:
+        """Largest distance from the crank axis to the rim, mm."""
+        pts = self.outer.points(POLYGON_CHORD_MM)
+        return float(np.hypot(pts[:, 0], pts[:, 1]).max())
+
+
+def _check_common(*, thickness: float, density_g_cm3: float, where: str) -> None:
+    """where : the key prefix named in messages ("web" -> "web.thickness"; "-" -> "--thickness")."""
+    sep = "-" if where == "-" else "."
+    if not (isinstance(thickness, (int, float)) and thickness > 0 and math.isfinite(thickness)):
+        raise BadInput(f"{where}{sep}thickness: must be > 0 mm, got {thickness!r}")
+    if not (isinstance(density_g_cm3, (int, float)) and density_g_cm3 > 0 and math.isfinite(density_g_cm3)):
+        raise BadInput(f"{where}{sep}density: must be > 0 g/cm^3, got {density_g_cm3!r}")
+
+
+def check_bores(outer: Loop, bores, *, where: str, names=None) -> None:
+    """BadInput if a bore is not wholly inside the outline or two bores cross.
+
+    names : optional labels of the bores for the message (default: where each starts).
+    """
+    rim = outer.polygon(POLYGON_CHORD_MM)
+    polys = [b.polygon(POLYGON_CHORD_MM) for b in bores]
+    labels = list(names) if names else [f"the bore starting at {_fmt(b.segments[0].start)}" for b in bores]
+    for label, poly in zip(labels, polys):
+        if not rim.contains(poly):
+            c = poly.centroid
+            raise BadInput(f"{where}: {label} (centre {_fmt((c.x, c.y))}) is not inside the web outline; "
+                           "it crosses or touches the rim")
+    for i in range(len(polys)):
+        for j in range(i + 1, len(polys)):
+            if polys[i].intersects(polys[j]):
+                raise BadInput(f"{where}: {labels[i]} and {labels[j]} overlap or touch; bores must be apart")
+
+
+def parametric_web(*, diameter: float, thickness: float, density_g_cm3: float, stroke: float,
+                   pin_bore: float, main_bore: float = 0.0, where: str = "web") -> WebSection:
+    """A full-circle web of `diameter` (mm) with the pin bore at (0, stroke/2)
+    and, if main_bore > 0, a main bore at the origin."""
+    _check_common(thickness=thickness, density_g_cm3=density_g_cm3, where=where)
+    for key, value in (("diameter", diameter), ("pin_bore", pin_bore)):
+        if not value > 0:
+            raise BadInput(f"{where}.{key}: must be > 0 mm, got {value}")
+    if not stroke > 0:
+        raise BadInput(f"engine.stroke: must be > 0 mm, got {stroke}")
+    if main_bore < 0:
+        raise BadInput(f"{where}.main_bore: must be >= 0 mm (0 = integral mainshaft), got {main_bore}")
+    pin_y = 0.5 * stroke
+    if pin_y + 0.5 * pin_bore >= 0.5 * diameter:
+        raise BadInput(f"{where}.pin_bore: a {pin_bore:g} mm bore at {pin_y:g} mm from the axis reaches "
+                       f"{pin_y + 0.5 * pin_bore:g} mm, past the {0.5 * diameter:g} mm rim of the "
+                       f"{diameter:g} mm web")
+    if main_bore > 0 and 0.5 * main_bore + 0.5 * pin_bore >= pin_y:
+        raise BadInput(f"{where}.main_bore: a {main_bore:g} mm main bore and the {pin_bore:g} mm pin bore "
+                       f"overlap at stroke {stroke:g} mm (need main_bore/2 + pin_bore/2 < stroke/2)")
+    bores = [circle(0.0, pin_y, 0.5 * pin_bore)]
+    if main_bore > 0:
+        bores.append(circle(0.0, 0.0, 0.5 * main_bore))
+    return WebSection(circle(0.0, 0.0, 0.5 * diameter), tuple(bores), (0.0, pin_y), float(pin_bore),
+                      float(thickness), float(density_g_cm3), float(main_bore))
+
+
+def _find_circle(loops, centre, tol):
+    """Index of the inner loop that is a full circle centred within tol of centre, else None."""
+    for i, loop in enumerate(loops):
+        c = loop.as_circle()
+        if c is not None and math.dist(c[:2], centre) <= tol:
+            return i
+    return None
+
+
+def _near_miss(loops, centre, name, where, hint):
+    """A drawn circle that covers `centre` but is not centred on it: the stroke and drawing disagree."""
+    for loop in loops:
+        c = loop.as_circle()
+        if c is not None and math.dist(c[:2], centre) < c[2]:
+            raise BadInput(f"{where}: the drawing has a circle at {_fmt(c[:2])} near the {name} position "
+                           f"{_fmt(centre)} but not centred on it; {hint}")
+
+
+def outline_web(*, path, thickness: float, density_g_cm3: float, stroke: float, pin_bore: float,
+                main_bore: float = 0.0, units: str | None = None, where: str = "web.outline",
+                gap_tol: float = GAP_TOL_MM) -> WebSection:
+    """A web from a DXF outline (crank axis at the drawing origin, pin on +Y).
+
+    A drawn circle at (0, stroke/2) is the pin bore and must agree with
+    `pin_bore`; without one, the pin bore is cut from `pin_bore`.  Likewise a
+    drawn circle at the origin is the main bore and must agree with
+    `main_bore` when that is > 0 (with main_bore = 0 a drawn one is kept as
+    drawn).  Every other inner loop is kept as a bore (an existing hole).
+    units : "mm" | "in" for a unitless drawing (the job key outline_units).
+    """
+    _check_common(thickness=thickness, density_g_cm3=density_g_cm3, where=where.rsplit(".", 1)[0])
+    if not pin_bore > 0:
+        raise BadInput(f"{where.rsplit('.', 1)[0]}.pin_bore: must be > 0 mm, got {pin_bore}")
+    outline = read_outline(path, units=units, gap_tol=gap_tol, where=where)
+    pin_centre = (0.0, 0.5 * stroke)
+    bores = list(outline.inner)
+    names = [f"the drawn loop starting at {_fmt(b.segments[0].start)}" for b in bores]
+    source = f"{where} {path}"
+
+    i = _find_circle(bores, pin_centre, PIN_CENTRE_TOL_MM)
+    if i is not None:
+        drawn = 2.0 * bores[i].as_circle()[2]
+        if abs(drawn - pin_bore) > PIN_DIAMETER_TOL_MM:
+            raise BadInput(f"{source}: the pin bore disagrees: the DXF says {drawn:.6g} mm, "
+                           f"the job says pin_bore = {pin_bore:.6g} mm")
+        names[i] = f"the pin bore ({drawn:g} mm at {_fmt(pin_centre)})"
+    else:
+        _near_miss(bores, pin_centre, "pin", source,
+                   "check engine.stroke or the drawing's origin (crank axis at 0, 0; pin on +Y)")
+        pin = circle(pin_centre[0], pin_centre[1], 0.5 * pin_bore)
+        if not outline.outer.polygon(POLYGON_CHORD_MM).contains(pin.polygon(POLYGON_CHORD_MM)):
+            raise BadInput(f"{source}: the pin bore ({pin_bore:g} mm at {_fmt(pin_centre)}) is not inside "
+                           "the outline; check engine.stroke, pin_bore and the drawing's origin")
+        bores.append(pin)
+        names.append(f"the pin bore ({pin_bore:g} mm at {_fmt(pin_centre)})")
+
+    if main_bore > 0:
+        k = _find_circle(bores, (0.0, 0.0), PIN_CENTRE_TOL_MM)
+        if k is not None:
+            drawn = 2.0 * bores[k].as_circle()[2]
+            if abs(drawn - main_bore) > PIN_DIAMETER_TOL_MM:
+                raise BadInput(f"{source}: the main bore disagrees: the DXF says {drawn:.6g} mm, "
+                               f"the job says main_bore = {main_bore:.6g} mm")
+            names[k] = f"the main bore ({drawn:g} mm)"
+        else:
+            bores.append(circle(0.0, 0.0, 0.5 * main_bore))
+            names.append(f"the main bore ({main_bore:g} mm)")
+    elif main_bore < 0:
+        raise BadInput(f"{where.rsplit('.', 1)[0]}.main_bore: must be >= 0 mm, got {main_bore}")
+
+    check_bores(outline.outer, bores, where=source, names=names)
+    return WebSection(outline.outer, tuple(bores), pin_centre, float(pin_bore), float(thickness),
+                      float(density_g_cm3), float(main_bore))
+
+
+def inspect_dxf(path, *, thickness: float, density_g_cm3: float, units: str | None = None,
+                stroke: float | None = None, pin_bore: float | None = None) -> MassProps:
+    """Mass properties of a DXF outline as drawn (inner loops as holes),
+    swept from z = 0 to `thickness` (mm) at `density_g_cm3`.
+
+    With `stroke` and `pin_bore` both given, the pin bore is checked or cut
+    as in `outline_web`.
+    """
+    if stroke is not None and pin_bore is not None:
+        return outline_web(path=path, thickness=thickness, density_g_cm3=density_g_cm3, stroke=stroke,
+                           pin_bore=pin_bore, units=units, where="inspect").massprops()
+    _check_common(thickness=thickness, density_g_cm3=density_g_cm3, where="-")
+    outline = read_outline(path, units=units, where="inspect")
+    check_bores(outline.outer, outline.inner, where=f"inspect {path}")
+    return WebSection(outline.outer, outline.inner, (math.nan, math.nan), math.nan, float(thickness),
+                      float(density_g_cm3)).massprops()
