@@ -201,3 +201,214 @@ def feature_to_table(feature: Feature) -> dict:
     if isinstance(feature, Hole) and not feature.through:
         table.pop("through")
     return table
+
+
+# --------------------------------------------------------------------------
+# analytic mass properties, footprints and depth ranges
+# --------------------------------------------------------------------------
+#
+# Each feature is built from closed-form bodies in a local frame (base of
+# the body at the origin, axis along +Z) and placed with
+# MassProps.transformed, the one home of the parallel-axis theorem.
+
+import numpy as _np  # noqa: E402  (kept below the lead's part of the module)
+
+from . import loops as _loops  # noqa: E402
+from .massprops import MassProps  # noqa: E402
+from .materials import material as _material  # noqa: E402
+
+#: turns a local +Z body into a -Z one (half a turn about X)
+_FLIP_Z = _np.diag([1.0, -1.0, -1.0])
+
+
+def cylinder_massprops(*, radius: float, height: float, density_g_cm3: float) -> MassProps:
+    """A solid cylinder, base centred at the origin, axis +Z (mm, g/cm^3).
+
+    Closed forms: V = pi r^2 h;  ∫x² dV = ∫y² dV = V r²/4;  ∫z dV = V h/2;
+    ∫z² dV = V h²/3 (integrals of the disc and of z over 0..h).
+    """
+    v = math.pi * radius * radius * height
+    s = _np.diag([v * radius * radius / 4.0, v * radius * radius / 4.0, v * height * height / 3.0])
+    return MassProps.from_density(volume=v, centroid=(0.0, 0.0, 0.5 * height),
+                                  volume_second_moment=s, density_g_cm3=density_g_cm3)
+
+
+def cone_massprops(*, radius: float, height: float, density_g_cm3: float) -> MassProps:
+    """A solid right cone, base of `radius` centred at the origin, apex at (0, 0, height).
+
+    Closed forms: V = pi r^2 h / 3; centroid h/4 from the base (Machinery's
+    Handbook); ∫x² dV = ∫y² dV = 3 V r²/20; ∫z² dV = V h²/10 (the disc of
+    radius r(1 - z/h) integrated over 0..h).
+    """
+    v = math.pi * radius * radius * height / 3.0
+    s = _np.diag([3.0 * v * radius * radius / 20.0, 3.0 * v * radius * radius / 20.0,
+                  v * height * height / 10.0])
+    return MassProps.from_density(volume=v, centroid=(0.0, 0.0, 0.25 * height),
+                                  volume_second_moment=s, density_g_cm3=density_g_cm3)
+
+
+def _hole_depth(feature: Hole, thickness: float) -> float:
+    return thickness if feature.through else feature.depth
+
+
+def z_range(feature: Feature, thickness: float) -> tuple[float, float]:
+    """(z_low, z_high) mm of the material a feature takes or fills, drill point included."""
+    if isinstance(feature, Hole):
+        if feature.through:
+            return (0.0, thickness)
+        reach = feature.depth + feature.point_length
+    elif isinstance(feature, Pocket):
+        reach = feature.depth
+    elif isinstance(feature, Plug):
+        reach = feature.length
+    else:
+        raise TypeError(f"not a feature: {feature!r}")
+    if feature.face == "outer":
+        return (thickness - reach, thickness)
+    return (0.0, reach)
+
+
+def _axial_body(body_up: MassProps, *, x: float, y: float, z_face: float, into_minus_z: bool) -> MassProps:
+    """A local +Z body placed with its base at (x, y, z_face), turned to point -Z if asked."""
+    return body_up.transformed(rotation=_FLIP_Z if into_minus_z else None, offset=(x, y, z_face))
+
+
+def _hole_volume_massprops(feature: Hole, thickness: float, density: float) -> MassProps:
+    """The material a hole removes (positive body) in the web frame."""
+    r = 0.5 * feature.diameter
+    depth = _hole_depth(feature, thickness)
+    down = feature.face == "outer"  # drilled from z = thickness towards -Z
+    z_face = thickness if down else 0.0
+    body = _axial_body(cylinder_massprops(radius=r, height=depth, density_g_cm3=density),
+                       x=feature.x, y=feature.y, z_face=z_face, into_minus_z=down)
+    point = feature.point_length
+    if point > 0.0:
+        z_shoulder = z_face - depth if down else z_face + depth
+        body = body + _axial_body(cone_massprops(radius=r, height=point, density_g_cm3=density),
+                                  x=feature.x, y=feature.y, z_face=z_shoulder, into_minus_z=down)
+    return body
+
+
+def feature_massprops(feature: Feature, *, thickness: float, web_density: float,
+                      plug_density: float | None = None) -> MassProps:
+    """The CHANGE a feature makes to the web's mass properties, web frame.
+
+    Hole or pocket: minus the material removed (web density; volume
+    negative).  Plug: the bore filled flush, +(plug_density - web_density)
+    times its cylinder (volume change 0: the web keeps its volume).
+    thickness : web thickness, mm;  densities : g/cm^3 (plug_density defaults
+    to the plug's own material, see `plug_density`).
+    """
+    if isinstance(feature, Hole):
+        return -_hole_volume_massprops(feature, thickness, web_density)
+    if isinstance(feature, Pocket):
+        z0, z1 = z_range(feature, thickness)
+        return -_loops.prism(footprint(feature).area_moments(), z0=z0, z1=z1, density_g_cm3=web_density)
+    if isinstance(feature, Plug):
+        rho_plug = plug_density_of(feature) if plug_density is None else plug_density
+        down = feature.face == "outer"
+        body = _axial_body(cylinder_massprops(radius=0.5 * feature.diameter, height=feature.length,
+                                              density_g_cm3=rho_plug - web_density),
+                           x=feature.x, y=feature.y, z_face=thickness if down else 0.0, into_minus_z=down)
+        # the bore is filled flush: the web's volume does not change, only its mass
+        return MassProps(body.mass, body.first_moment, body.second_moment, 0.0)
+    raise TypeError(f"not a feature: {feature!r}")
+
+
+def plug_density_of(feature: Plug, where: str = "plug") -> float:
+    """The plug's density, g/cm^3: its own `density`, else its material's nominal one."""
+    if feature.density is not None:
+        return float(feature.density)
+    return _material(feature.material, f"{where}.material").density
+
+
+def plug_density(feature: Plug, where: str = "plug") -> float:
+    """Alias of `plug_density_of` (the name of the issue's contract)."""
+    return plug_density_of(feature, where)
+
+
+# -- footprints --------------------------------------------------------------
+
+def _polar(r: float, deg: float) -> tuple[float, float]:
+    a = math.radians(deg)
+    return (r * math.cos(a), r * math.sin(a))
+
+
+def kidney_loop(*, r_inner: float, r_outer: float, angle_start: float, angle_end: float,
+                corner_radius: float = 0.0, where: str = "pocket") -> _loops.Loop:
+    """The plan view of an annular-sector pocket, counter-clockwise (mm).
+
+    Angles in deg from +Y, ccw (the contract's web angles); the pocket runs
+    ccw from angle_start to angle_end.  Each of the four corners is a fillet
+    of `corner_radius` tangent to the radial line and to the arc: an outer
+    fillet's centre lies at r_outer - rc, an inner one's at r_inner + rc
+    (the inner arc is concave seen from the pocket), each rc from the radial
+    line.  With r_inner = 0 the sector comes to a point at the axis, rounded
+    by a fillet tangent to both radial lines when the span is under 180 deg.
+    """
+    from .errors import BadInput
+
+    span = (angle_end - angle_start) % 360.0 or 360.0
+    t_s = angle_start + 90.0          # math angle (from +X) of the start radial line
+    t_e = t_s + span
+    ri, ro, rc = float(r_inner), float(r_outer), float(corner_radius)
+    Arc, Line, Loop = _loops.Arc, _loops.Line, _loops.Loop
+    if rc <= 0.0:
+        outer = Arc((0.0, 0.0), ro, t_s, span)
+        if ri > 0.0:
+            inner = Arc((0.0, 0.0), ri, t_e, -span)
+            return Loop((outer, Line(outer.end, inner.start), inner, Line(inner.end, outer.start)))
+        return Loop((outer, Line(outer.end, (0.0, 0.0)), Line((0.0, 0.0), outer.start)))
+
+    d_o = math.degrees(math.asin(rc / (ro - rc)))
+    if 2.0 * d_o >= span:
+        raise BadInput(f"{where}.corner_radius: {rc:g} mm corners do not fit a {span:g} deg pocket at "
+                       f"r_outer {ro:g} mm (need about 2 * corner_radius / r_outer rad of span)")
+    c_oe = _polar(ro - rc, t_e - d_o)
+    c_os = _polar(ro - rc, t_s + d_o)
+    segs = [Arc((0.0, 0.0), ro, t_s + d_o, span - 2.0 * d_o),
+            Arc(c_oe, rc, t_e - d_o, 90.0 + d_o)]
+    if ri > 0.0:
+        d_i = math.degrees(math.asin(rc / (ri + rc)))
+        if 2.0 * d_i >= span:
+            raise BadInput(f"{where}.corner_radius: {rc:g} mm corners do not fit a {span:g} deg pocket at "
+                           f"r_inner {ri:g} mm")
+        c_ie = _polar(ri + rc, t_e - d_i)
+        c_is = _polar(ri + rc, t_s + d_i)
+        fil_ie = Arc(c_ie, rc, t_e + 90.0, 90.0 - d_i)
+        inner = Arc((0.0, 0.0), ri, t_e - d_i, -(span - 2.0 * d_i))
+        fil_is = Arc(c_is, rc, t_s + d_i + 180.0, 90.0 - d_i)
+        tail = [fil_ie, inner, fil_is]
+    elif span < 180.0:
+        half = 0.5 * math.radians(span)
+        apex = _polar(rc / math.sin(half), t_s + 0.5 * span)
+        tail = [Arc(apex, rc, t_e + 90.0, 180.0 - span)]
+    else:
+        tail = []
+    fil_os = Arc(c_os, rc, t_s - 90.0, 90.0 + d_o)
+    chain = segs + tail + [fil_os]
+    # radial lines between the fillets (skipped where two fillets meet)
+    out = []
+    for k, seg in enumerate(chain):
+        out.append(seg)
+        nxt = chain[(k + 1) % len(chain)]
+        if math.dist(seg.end, nxt.start) > 1e-9 * max(1.0, ro):
+            out.append(Line(seg.end, nxt.start))
+    return Loop(tuple(out))
+
+
+def footprint(feature: Feature) -> _loops.Loop:
+    """The exact plan-view outline of a feature on its face (ccw, mm):
+    a circle for a hole or plug, the filleted kidney for a pocket."""
+    if isinstance(feature, (Hole, Plug)):
+        return _loops.circle(feature.x, feature.y, 0.5 * feature.diameter)
+    if isinstance(feature, Pocket):
+        return kidney_loop(r_inner=feature.r_inner, r_outer=feature.r_outer,
+                           angle_start=feature.angle_start, angle_end=feature.angle_end,
+                           corner_radius=feature.corner_radius)
+    raise TypeError(f"not a feature: {feature!r}")
+
+
+def footprint_polygon(feature: Feature, max_chord_mm: float = 0.005):
+    """The footprint as a shapely Polygon (flattened within `max_chord_mm` sagitta)."""
+    return footprint(feature).polygon(max_chord_mm)
