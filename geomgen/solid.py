@@ -167,7 +167,9 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0) -> fl
 
     if len(prints) > 1:
         tree = shapely.STRtree(prints)
-        left, right = tree.query(prints, predicate="dwithin", distance=limit)
+        # a pair further apart in plan than the smallest wall so far cannot be smaller
+        reach = max(limit, smallest if math.isfinite(smallest) else limit)
+        left, right = tree.query(prints, predicate="dwithin", distance=reach)
         for i, j in zip(left, right):
             if i >= j:
                 continue
