@@ -173,7 +173,8 @@ def test_tilted_cylinder_study_rotates_the_cycle():
 
 
 def test_study_runs_without_cadquery(tmp_path):
-    # the design rule: `geomgen study` must not import the CAD kernel
+    # the design rule: `geomgen study` must not import the CAD kernel, and
+    # balance/study import matplotlib only when a picture is drawn
     script = textwrap.dedent("""
         import sys
         class Block:
@@ -191,7 +192,9 @@ def test_study_runs_without_cadquery(tmp_path):
             reciprocating = {"piston": 300.0}; rotating = {"pin": 400.0}
             crank_radius = 32.0; m_reciprocating = 300.0; m_rotating = 400.0
             omega = 9000 * 2 * 3.141592653589793 / 60
-        files = study.render(study.study(engine=E()))
+        result = study.study(engine=E())
+        assert "matplotlib" not in sys.modules  # the plot library only for render()
+        files = study.render(result)
         assert files["study.svg"].startswith(b"<?xml")
         assert not any(m.split(".")[0] in ("cadquery", "OCP") for m in sys.modules)
         print("ok", len(files["study.json"]))
