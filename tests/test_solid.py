@@ -255,3 +255,15 @@ def test_features_on_opposite_faces_may_share_a_footprint():
     # 5 mm deep from each face of an 18 mm web: 8 mm of floor between them
     pair = [Pocket(40.0, 58.0, 150.0, 210.0, 5.0), Pocket(40.0, 58.0, 150.0, 210.0, 5.0, face="inner")]
     assert check_features(section(), pair, name="a") == pytest.approx(7.0, abs=1e-3)  # rim wall 65-58
+
+
+def test_modules_import_no_kernel():
+    """solid/export/verify import cadquery, OCP and trimesh only inside functions
+    (design.md: `geomgen study` must not load the kernel)."""
+    import subprocess
+    import sys
+
+    code = ("import sys, geomgen.solid, geomgen.export, geomgen.verify; "
+            "print(sorted(m for m in ('cadquery', 'OCP', 'trimesh') if m in sys.modules))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
+    assert out.strip() == "[]"
