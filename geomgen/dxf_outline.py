@@ -311,13 +311,23 @@ def _mm_per_unit(doc, units: str | None, source: str) -> float:
     return INSUNITS_MM[code]
 
 
-def _valid_polygon(loop: Loop, source: str) -> shapely.Polygon:
+def _valid_polygon(loop: Loop, source: str):
+    """The loop's polygon for containment checks; BadInput if it crosses itself.
+
+    A crossing whose lobes hold no area worth naming (below 1e-9 of the
+    loop's area: two arcs joined across a 1e-6 gap where both run
+    tangentially) is not a fault of the drawing; the repaired polygon is used.
+    """
     poly = loop.polygon(CHECK_CHORD_MM)
-    if not poly.is_valid:
-        why = shapely.is_valid_reason(poly)
-        raise BadInput(f"{source}: self-crossing loop ({why}); the loop starting at "
-                       f"{_fmt(loop.segments[0].start)} must not cross itself")
-    return poly
+    if poly.is_valid:
+        return poly
+    repaired = shapely.make_valid(poly)
+    ring_area = poly.area  # the shoelace sum of the ring: lobes of opposite winding cancel
+    if ring_area > 0 and abs(repaired.area - ring_area) <= 1e-9 * ring_area:
+        return repaired
+    why = shapely.is_valid_reason(poly)
+    raise BadInput(f"{source}: self-crossing loop ({why}); the loop starting at "
+                   f"{_fmt(loop.segments[0].start)} must not cross itself")
 
 
 def read_outline(path, *, units: str | None = None, gap_tol: float = GAP_TOL_MM,
