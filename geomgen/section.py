@@ -20,7 +20,7 @@ import shapely
 
 from .dxf_outline import GAP_TOL_MM, read_outline
 from .errors import BadInput
-from .loops import AreaMoments, Loop, circle, prism
+from .loops import AreaMoments, Line, Loop, circle, prism
 from .massprops import MassProps
 
 #: a drawn circle whose centre is this close to the pin position (mm) is the pin bore
@@ -76,15 +76,39 @@ class WebSection:
 
     @property
     def rim_radius_min(self) -> float:
-        """Smallest distance from the crank axis to the rim, mm."""
-        ring = shapely.LinearRing(self.outer.points(POLYGON_CHORD_MM))
-        return float(ring.distance(shapely.Point(0.0, 0.0)))
+        """Smallest distance from the crank axis to the rim, mm (exact)."""
+        return min(_radius_range(s)[0] for s in self.outer.segments)
 
     @property
     def rim_radius_max(self) -> float:
-        """Largest distance from the crank axis to the rim, mm."""
-        pts = self.outer.points(POLYGON_CHORD_MM)
-        return float(np.hypot(pts[:, 0], pts[:, 1]).max())
+        """Largest distance from the crank axis to the rim, mm (exact)."""
+        return max(_radius_range(s)[1] for s in self.outer.segments)
+
+
+def _radius_range(seg) -> tuple[float, float]:
+    """(nearest, farthest) distance of a Line or Arc from the origin, mm."""
+    ends = (math.hypot(*seg.start), math.hypot(*seg.end))
+    if isinstance(seg, Line):
+        (x0, y0), (x1, y1) = seg.start, seg.end
+        dx, dy = x1 - x0, y1 - y0
+        t = min(1.0, max(0.0, -(x0 * dx + y0 * dy) / (dx * dx + dy * dy)))
+        return (math.hypot(x0 + t * dx, y0 + t * dy), max(ends))
+    cx, cy = seg.center
+    d = math.hypot(cx, cy)
+    lo, hi = min(ends), max(ends)
+    # the nearest point of the full circle lies towards the origin, the farthest away from it
+    toward = math.degrees(math.atan2(-cy, -cx)) if d > 0 else seg.start_deg
+
+    def on_arc(angle):
+        a0, sweep = seg.start_deg, seg.sweep_deg
+        off = (angle - a0) % 360.0 if sweep > 0 else (a0 - angle) % 360.0
+        return d == 0 or off <= abs(sweep)
+
+    if on_arc(toward):
+        lo = abs(d - seg.radius)
+    if on_arc(toward + 180.0):
+        hi = d + seg.radius
+    return (lo, hi)
 
 
 def _check_common(*, thickness: float, density_g_cm3: float, where: str) -> None:
