@@ -111,7 +111,7 @@ def _where(geom) -> str:
     return f"({p.x:.2f}, {p.y:.2f}) mm"
 
 
-def check_features(section, features, *, name: str, min_wall: float = 0.0) -> float:
+def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_wall: float = 0.0) -> float:
     """Refuse features that break through the rim, a face or a bore, or
     overlap one another; return the smallest wall found, mm.
 
@@ -122,6 +122,8 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0) -> fl
 
     section : WebSection;  features : sequence of Hole/Pocket/Plug
     min_wall : mm, the wall demanded (at least MIN_SOLID_WALL_MM)
+    pin_wall : mm, the wall demanded around the crankpin bore (press fit),
+               if larger than min_wall
     Raises BadInput naming the web, the feature index and the wall.
     """
     limit = max(float(min_wall), MIN_SOLID_WALL_MM)
@@ -150,11 +152,14 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0) -> fl
         smallest = min(smallest, wall)
         for k, bore in enumerate(bores):
             label = "the crankpin bore" if k == pin_index else f"bore {k}"
+            need = max(limit, float(pin_wall)) if k == pin_index else limit
             if fp.intersects(bore):
                 refuse(i, f, f"cuts into {label}", 0.0, fp.intersection(bore))
             wall = bore.distance(fp)
-            if wall < limit:
-                refuse(i, f, f"comes too close to {label}", wall, shapely.shortest_line(bore, fp))
+            if wall < need:
+                raise BadInput(f"web {name}: feature {i} ({f.kind}) comes too close to {label} at "
+                               f"{_where(shapely.shortest_line(bore, fp))}; smallest wall {wall:.3g} mm, "
+                               f"allowed >= {need:g} mm")
             smallest = min(smallest, wall)
         # a blind feature must leave a floor; one reaching the far face is through
         for floor, face in ((z0, "inner"), (t - z1, "outer")):
@@ -303,16 +308,18 @@ def _cleaned(shape):
     return shape
 
 
-def build_web(section, features=(), *, name: str, min_wall: float = 0.0, clean: bool = True) -> WebSolid:
+def build_web(section, features=(), *, name: str, min_wall: float = 0.0, pin_wall: float = 0.0,
+              clean: bool = True) -> WebSolid:
     """The web solid with its features, in the web frame.
 
     section : WebSection (outer Loop, bores, thickness mm, density g/cm^3)
     features : Hole / Pocket / Plug, in the web frame
     min_wall : mm, the wall demanded between features, rim, bores and faces
+    pin_wall : mm, the wall demanded around the crankpin bore
     Raises BadInput for a feature that breaks out or overlaps another.
     """
     features = tuple(features)
-    check_features(section, features, name=name, min_wall=min_wall)
+    check_features(section, features, name=name, min_wall=min_wall, pin_wall=pin_wall)
     t = float(section.thickness)
     body = body_shape(section)
     plugs: list[PlugSolid] = []

@@ -85,11 +85,14 @@ def exact_massprops(web) -> MassProps:
 def step_massprops(path, densities) -> MassProps:
     """Properties of the solids re-read from a STEP file.
 
-    densities : {solid name: g/cm^3}, or a sequence in file order
+    densities : {solid name: g/cm^3}, a sequence in file order, or one
+                number for every solid
     """
     from .export import read_step
 
     solids = read_step(path)
+    if isinstance(densities, (int, float)):
+        densities = [float(densities)] * len(solids)
     if isinstance(densities, dict):
         missing = [n for n, _ in solids if n not in densities]
         if missing:

@@ -267,3 +267,13 @@ def test_modules_import_no_kernel():
             "print(sorted(m for m in ('cadquery', 'OCP', 'trimesh') if m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "[]"
+
+
+def test_pin_wall_guards_the_press_fit():
+    from geomgen.solid import check_features
+
+    # pin bore: centre (0, 32), radius 14 -> lowest point y = 18; hole radius 4 at y = 10: 4 mm wall
+    hole = [Hole(0.0, 10.0, 8.0, 5.0)]
+    assert check_features(section(), hole, name="a", pin_wall=3.0) == pytest.approx(4.0, abs=1e-3)
+    with pytest.raises(BadInput, match=r"too close to the crankpin bore.*smallest wall 4 mm, allowed >= 6 mm"):
+        check_features(section(), hole, name="a", pin_wall=6.0)
