@@ -346,8 +346,6 @@ def kidney_loop(*, r_inner: float, r_outer: float, angle_start: float, angle_end
     line.  With r_inner = 0 the sector comes to a point at the axis, rounded
     by a fillet tangent to both radial lines when the span is under 180 deg.
     """
-    from .errors import BadInput
-
     span = (angle_end - angle_start) % 360.0 or 360.0
     t_s = angle_start + 90.0          # math angle (from +X) of the start radial line
     t_e = t_s + span

@@ -15,7 +15,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import numpy as np
 import shapely
 
 from .dxf_outline import GAP_TOL_MM, read_outline
