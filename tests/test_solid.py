@@ -277,3 +277,28 @@ def test_pin_wall_guards_the_press_fit():
     assert check_features(section(), hole, name="a", pin_wall=3.0) == pytest.approx(4.0, abs=1e-3)
     with pytest.raises(BadInput, match=r"too close to the crankpin bore.*smallest wall 4 mm, allowed >= 6 mm"):
         check_features(section(), hole, name="a", pin_wall=6.0)
+
+
+def test_outline_of_lines_and_arcs_with_main_bore():
+    """A non-circular outline (lines and a 180-degree arc) with pin and main
+    bores: B-rep (OpenCascade) volume and first moment against Green's theorem
+    on the exact loops (geomgen.loops) — two independent integrations."""
+    from geomgen.loops import Arc, Line, Loop, circle
+    from geomgen.section import WebSection
+    from geomgen.solid import build_web
+    from geomgen.verify import solid_massprops
+
+    # a "D": flat top at y = 50 from x = -40 to 40, sides down to y = 0, half circle below
+    outer = Loop((Line((40, 0), (40, 50)), Line((40, 50), (-40, 50)), Line((-40, 50), (-40, 0)),
+                  Arc((0, 0), 40.0, 180.0, 180.0)))
+    sec = WebSection(outer, (circle(0, 30, 10), circle(0, 0, 8)), (0, 30), 20.0, 15.0, RHO, 16.0)
+    web = build_web(sec, [Hole(0.0, -25.0, 8.0, 6.0)], name="d")
+    mp = solid_massprops(web.body, RHO)
+    expected = sec.massprops()
+    # the hole in this 15 mm web: cylinder from z = 9 to 15 and its point cone below z = 9
+    r, L = 4.0, half_angle_len(8.0)
+    v_cyl, m_cyl = cylinder(0.0, -25.0, r, 9.0, 15.0, RHO)
+    v_cone, m_cone = cone(0.0, -25.0, r, 9.0, -L, RHO)
+    assert mp.volume == pytest.approx(expected.volume - v_cyl - v_cone, rel=1e-9)
+    m1 = expected.first_moment / (RHO * 1e-3) - m_cyl - m_cone
+    assert np.allclose(mp.first_moment / (RHO * 1e-3), m1, rtol=0, atol=1e-6 * abs(m1).max())
