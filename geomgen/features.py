@@ -15,7 +15,13 @@ from __future__ import annotations
 import math
 from dataclasses import MISSING as _MISSING, asdict, dataclass
 
+import numpy as _np
+
+from . import loops as _loops
 from .errors import BadInput
+from .massprops import MassProps
+from .materials import custom as _custom_material
+from .materials import material as _material
 from .units import to_internal
 
 FACES = ("outer", "inner")
@@ -138,16 +144,23 @@ def feature_from_table(table: dict, *, where: str, thickness: float | None = Non
         if not isinstance(through, bool):
             raise BadInput(f"{where}.through: must be true or false, got {through!r}")
         values["through"] = through
-        if through and "depth" not in values:
-            if thickness is None:
+        if through:
+            if thickness is not None:
+                if "depth" in values and abs(values["depth"] - thickness) > 1e-6:
+                    raise BadInput(f"{where}.depth: a through hole is as deep as the web ({thickness:g} mm), "
+                                   f"got {values['depth']:g} mm; leave depth out or set through = false")
+                values["depth"] = thickness
+            elif "depth" not in values:
                 raise BadInput(f"{where}.depth: needed for a through hole here")
-            values["depth"] = thickness
     if kind == "plug":
+        if "density" in table and "material" in table:
+            raise BadInput(f"{where}: give the plug 'material' or 'density', not both")
         if "density" in table:
-            values["density"] = to_internal(table["density"], "density", f"{where}.density")
-            values["material"] = table.get("material")
+            rho = to_internal(table["density"], "density", f"{where}.density")
+            values["density"] = _custom_material(rho, f"{where}.density").density
+            values["material"] = None
         elif "material" in table:
-            values["material"] = str(table["material"])
+            values["material"] = _material(str(table["material"]), f"{where}.material").name
         if "length" not in values and thickness is not None:
             values["length"] = thickness
     required = [k for k in _LENGTH_KEYS[kind] + _ANGLE_KEYS[kind]
@@ -211,11 +224,6 @@ def feature_to_table(feature: Feature) -> dict:
 # the body at the origin, axis along +Z) and placed with
 # MassProps.transformed, the one home of the parallel-axis theorem.
 
-import numpy as _np  # noqa: E402  (kept below the lead's part of the module)
-
-from . import loops as _loops  # noqa: E402
-from .massprops import MassProps  # noqa: E402
-from .materials import material as _material  # noqa: E402
 
 #: turns a local +Z body into a -Z one (half a turn about X)
 _FLIP_Z = _np.diag([1.0, -1.0, -1.0])

@@ -10,6 +10,7 @@ start fast.
 from __future__ import annotations
 
 import math
+import re
 from functools import lru_cache
 
 from .errors import BadInput
@@ -30,6 +31,21 @@ INTERNAL = {
 MM_PER_INCH = 25.4
 G_PER_LB = 453.59237
 N_PER_LBF = 4.4482216152605
+
+
+_LEADING_NUMBER = re.compile(r"^[-+]?(\d|\.\d|nan|inf)", re.IGNORECASE)
+
+
+def _speed_rpm(quantity, ureg) -> float:
+    """rpm from a shaft speed.  pint counts 1 Hz as 1 rad/s, but in the shop a
+    frequency of a shaft (Hz, 1/s, 1/min) counts turns: 70 Hz = 4200 rpm.
+    Only a speed written with an angle (rad/s, deg/s) is an angular rate."""
+    units = str(quantity.units)
+    if any(word in units for word in ("radian", "degree")):
+        return float(quantity.to("rad/s").magnitude) * 60.0 / (2.0 * math.pi)
+    if any(word in units for word in ("revolution", "turn", "rpm", "rps", "cycle")):
+        return float(quantity.to("rpm").magnitude)
+    return float(quantity.to("1/minute").magnitude)
 
 
 @lru_cache(maxsize=1)
@@ -68,6 +84,9 @@ def _parse(text: str, unit: str, kind: str, where: str) -> float:
         return float(text)  # a number written as a string: internal unit
     except ValueError:
         pass
+    if not _LEADING_NUMBER.match(text):
+        raise BadInput(f"{where}: {text!r} has no number; write e.g. \"2.5 in\" or a plain number in "
+                       f"{unit or 'plain numbers'}")
     import pint
 
     ureg = _registry()
@@ -80,6 +99,8 @@ def _parse(text: str, unit: str, kind: str, where: str) -> float:
     if not isinstance(quantity, ureg.Quantity):
         quantity = ureg.Quantity(float(quantity), "")
     try:
+        if kind == "speed":
+            return _speed_rpm(quantity, ureg)
         return float(quantity.to(unit).magnitude)
     except pint.errors.DimensionalityError:
         raise BadInput(f"{where}: {text!r} is not a {kind} "

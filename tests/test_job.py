@@ -379,29 +379,21 @@ def test_feature_face(tmp_path):
     bad(tmp_path, {"web.features": [{**HOLE, "face": "top"}]}, "web.features[0].face", "'outer' or 'inner'")
 
 
-@pytest.mark.xfail(reason="features.py feature_from_table: a plug's material name is kept as text and "
-                          "only looked up in solid.py, so a misspelt plug material passes job.load", strict=True)
 def test_plug_unknown_material(tmp_path):
     bad(tmp_path, {"web.features": [{**PLUG, "material": "W-alloy-class-9"}]}, "web.features[0].material",
         "known:")
 
 
-@pytest.mark.xfail(reason="features.py feature_from_table: a plug's density is not range-checked "
-                          "(0, negative or 1000 g/cm^3 load)", strict=True)
 @pytest.mark.parametrize("rho", [0.0, -18.0, 1000.0])
 def test_plug_density_out_of_range(tmp_path, rho):
     plug = {k: v for k, v in PLUG.items() if k != "material"}
     bad(tmp_path, {"web.features": [{**plug, "density": rho}]}, "web.features[0].density")
 
 
-@pytest.mark.xfail(reason="features.py feature_from_table: a plug with both 'material' and 'density' "
-                          "loads (the web refuses the same thing)", strict=True)
 def test_plug_material_and_density_together(tmp_path):
     bad(tmp_path, {"web.features": [{**PLUG, "density": 17.0}]}, "web.features[0]", "not both")
 
 
-@pytest.mark.xfail(reason="features.py check_dimensions: a through hole with depth = 30 on an 18 mm web "
-                          "loads with depth 30 (removed volume would be counted 30 mm deep)", strict=True)
 def test_through_hole_depth_is_the_web_thickness(tmp_path):
     through = {**HOLE, "through": True, "depth": 30.0}
     try:
