@@ -71,8 +71,7 @@ def _cmd_study(args) -> int:
 
     check_target(args.out, force=args.force)
     job = jobmod.load(args.job)
-    result = study.study(engine=job.engine, balancer=job.balancer,
-                         web_shares=[(w.name, w.share) for w in job.webs], iso_grade=job.correction.iso_grade)
+    result = study.study_of(job)
     files = study.render(result)
     with staged(args.out, force=args.force) as stage:
         write_files(stage, files)

@@ -21,7 +21,7 @@ from .features import feature_from_table, feature_massprops, feature_to_table, P
 from .massprops import MassProps
 from .output import check_target, staged, write_files
 from .planner import Limits, WebPlan, plan_web
-from .study import CAUTION, _num, _vec
+from .study import _num, _vec, study_of
 
 CAUTIONS = (
     "A crank that comes apart at speed can kill. These figures are design aids, not a release for service.",
@@ -317,27 +317,19 @@ def _clean_for_json(verified):
 
 
 # ------------------------------------------------------------------ commands
-def _study(job):
-    from . import study
-
-    return study.study(engine=job.engine, balancer=job.balancer, web_shares=[(w.name, w.share) for w in job.webs],
-                       iso_grade=job.correction.iso_grade, tolerance_bf=job.correction.tolerance_points / 100.0,
-                       name=job.name)
-
-
-def _shop_files(job, doc, webs) -> dict[str, bytes]:
+def _shop_files(job, doc, webs, study_result) -> dict[str, bytes]:
     """operations.csv, drawing.dxf and report.html, when the shop module is present."""
     try:
         from . import shop
     except ImportError:
         return {}
-    return shop.render(job=job, doc=doc, webs=webs)
+    return shop.render(job=job, doc=doc, webs=webs, study=study_result)
 
 
 def _finish(args, job, command, webs, *, with_study=True, with_shop=True):
     from . import study as study_mod
 
-    study_result = _study(job) if with_study else None
+    study_result = study_of(job) if with_study else None
     with staged(args.out, force=args.force) as stage:
         verified = build_and_verify(job, webs, stage)
         doc = plan_document(job, command, webs, verified, study_result)
@@ -348,7 +340,7 @@ def _finish(args, job, command, webs, *, with_study=True, with_shop=True):
         if study_result is not None:
             files.update(study_mod.render(study_result))
         if with_shop:
-            files.update(_shop_files(job, doc, webs))
+            files.update(_shop_files(job, doc, webs, study_result))
         write_files(stage, files)
         written = sorted(p.name for p in stage.iterdir())
     for line in summary_lines(doc):

@@ -43,6 +43,7 @@ MIN_HOLE_DEPTH = 1.0      # mm: a shallower hole is a spot face, not a correctio
 MAX_PATTERN = 16          # holes or plugs in one pattern
 ANGLE_STEP = 0.5          # deg, the grid hole positions are chosen on
 RADIUS_STEP = 0.5         # mm
+CANDIDATES = 40           # best layouts of the fewest features that are tuned and compared
 
 
 @dataclass(frozen=True)
@@ -283,7 +284,7 @@ def _row_features(row: _Row, axis: float, *, kind: str, depth: float, through_gr
     for gi, group in enumerate(row.groups[:count_groups]):
         for rel in group:
             x, y = _at(row.radius, axis + rel)
-            x, y = round(x, 3), round(y, 3)
+            x, y = round(x, 3) + 0.0, round(y, 3) + 0.0  # + 0.0: no -0.0 on the sheet
             through = gi < through_groups
             if kind == "hole":
                 feats.append(Hole(x=x, y=y, diameter=row.diameter, depth=thickness if through else depth,
@@ -349,13 +350,21 @@ def _plan_rows(*, kind, sampler, axis, need_vec, thickness, web_density, plug_de
                                                                has_blind))
     for n_target in sorted(by_count):
         found = sorted(by_count[n_target], key=lambda f: (f[0], f[1], -f[2]))
-        for _, _, d, row, count_groups, lo, hi, has_blind in found[:40]:
+        plans = []
+        for mass, _, d, row, count_groups, lo, hi, has_blind in found[:CANDIDATES]:
             plan = _tune_row(kind=kind, row=row, axis=axis, u=u, need_vec=need_vec, thickness=thickness,
                              web_density=web_density, plug_density=plug_density, limits=limits,
                              count_groups=count_groups, lo=lo, hi=hi, has_blind=has_blind,
                              plug_material=plug_material, tolerance=tolerance)
             if plan is not None:
-                return plan, reach
+                effect = _total(plan, thickness=thickness, web_density=web_density, plug_density=plug_density)
+                miss = float(np.max(np.abs(effect.unbalance - need_vec)))
+                # a plan that lands near the middle of the tolerance beats one at its edge:
+                # the part, the plug and the scale all add their own error on top
+                plans.append((miss > 0.2 * tolerance, abs(effect.mass), miss, plan))
+        if plans:
+            plans.sort(key=lambda p: p[:3])
+            return plans[0][3], reach
     return None, reach
 
 
@@ -395,7 +404,7 @@ def _tune_row(*, kind, row, axis, u, need_vec, thickness, web_density, plug_dens
 
 # ------------------------------------------------------------------ pockets
 def _kidney(r_in, r_out, axis, span, depth, corner):
-    return Pocket(r_inner=round(r_in, 3), r_outer=round(r_out, 3), angle_start=round(axis - span / 2, 4),
+    return Pocket(r_inner=round(float(r_in), 3), r_outer=round(float(r_out), 3), angle_start=round(axis - span / 2, 4),
                   angle_end=round(axis + span / 2, 4), depth=depth, corner_radius=corner, face="outer")
 
 

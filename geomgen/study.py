@@ -201,6 +201,13 @@ def study(
     return result
 
 
+def study_of(job) -> dict:
+    """The balance study of a loaded job (its webs' shares, tolerance and ISO grade)."""
+    return study(engine=job.engine, balancer=job.balancer, web_shares=[(w.name, w.share) for w in job.webs],
+                 iso_grade=job.correction.iso_grade, tolerance_bf=job.correction.tolerance_points / 100.0,
+                 name=job.name)
+
+
 def _n_lbf(newton: float) -> str:
     return f"{newton:.1f} N ({newton / LBF_N:.1f} lbf)"
 
