@@ -1,0 +1,347 @@
+"""`geomgen inspect FILE`: mass properties of a web as a file holds it.
+
+Four kinds of file, four roads to the same MassProps (web frame, mm, g):
+- a DXF outline (.dxf) swept through `--thickness`: the analytic section
+  (exact lines and arcs, geomgen.section); no CAD kernel is imported;
+- a STEP solid (.step/.stp): OpenCascade's exact volume integrals over the
+  B-rep, one solid at a time at its own density (geomgen.verify);
+- an STL mesh (.stl): trimesh's integrals over the triangles, refused unless
+  the mesh is a closed volume; STL carries no unit, so `--units` scales it;
+- a job (.toml): each web's bare section, the change each of its features
+  makes, the total, the web's target and what is still needed; no CAD kernel.
+
+`inspect_file` returns {"json": dict, "lines": [str]}: the command line
+prints one or the other.  Everything here is a thin layer: the figures come
+from MassProps, the wording and layout are this module's.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+from .errors import BadInput, VerificationFailed
+from .massprops import MassProps
+from .units import to_internal
+
+#: default material of a web body when neither --density nor --material is given
+DEFAULT_MATERIAL = "steel"
+#: default material of a solid named "plug-N" in a STEP file (the job's default plug_material)
+DEFAULT_PLUG_MATERIAL = "W-alloy-class-3"
+
+SOURCES = {
+    "dxf": "DXF outline, analytic section (exact lines and arcs)",
+    "step": "STEP solid, exact B-rep (OpenCascade)",
+    "stl": "STL mesh, mesh (trimesh)",
+    "job": "job file, analytic section (exact lines and arcs) and closed-form features",
+}
+KNOWN = ".dxf, .step/.stp, .stl or a job .toml"
+
+#: below this centre-of-mass offset (mm) the heavy spot has no direction worth printing
+_CENTRED_MM = 1e-9
+_LABEL = 20  # width of the label column of the plain output
+
+
+# ------------------------------------------------------------------ figures
+def heavy_spot_deg(unbalance, mass: float) -> float | None:
+    """Angle of the unbalance vector (2,) g*mm from +Y, counter-clockwise, deg in [0, 360).
+
+    None when the centre of mass lies within 1e-9 mm of the axis: the
+    direction is then round-off, not a heavy spot.
+    """
+    ux, uy = float(unbalance[0]), float(unbalance[1])
+    if math.hypot(ux, uy) <= _CENTRED_MM * max(abs(mass), 1e-300):
+        return None
+    # from +Y counter-clockwise: +Y -> 0, -X -> 90, -Y -> 180, +X -> 270
+    return math.degrees(math.atan2(-ux, uy)) % 360.0
+
+
+def figures(props: MassProps) -> dict:
+    """The contract's keys for one body, plus |U| and the heavy-spot angle."""
+    out = props.summary()
+    out["unbalance_magnitude_gmm"] = props.unbalance_magnitude
+    out["heavy_spot_deg"] = heavy_spot_deg(props.unbalance, props.mass)
+    return out
+
+
+def change_figures(props: MassProps) -> dict:
+    """What a feature changes: mass, volume, unbalance, inertia (no centre of mass:
+    a removal has negative mass, and its 'centre' would only confuse)."""
+    s = props.summary()
+    return {k: s[k] for k in ("mass_g", "volume_mm3", "unbalance_gmm", "inertia_z_gmm2", "inertia_tensor_gmm2")}
+
+
+# ------------------------------------------------------------------ plain lines
+def _row(label: str, text: str) -> str:
+    return f"{label:<{_LABEL}}{text}"
+
+
+def _angle_text(angle: float | None) -> str:
+    return "none (centred)" if angle is None else f"{angle:.2f} deg from +Y, counter-clockwise"
+
+
+def _clean(values, digits: int):
+    """Round-off below the printed digits shown as 0, not -0."""
+    return [round(float(v), digits) + 0.0 for v in values]
+
+
+def props_lines(props: MassProps, *, indent: str = "") -> list[str]:
+    """The figures of one body as aligned lines with their units."""
+    c, u, inertia = _clean(props.com, 4), _clean(props.unbalance, 2), props.inertia
+    lines = [
+        _row("mass", f"{props.mass:14.3f} g"),
+        _row("volume", f"{props.volume:14.1f} mm^3"),
+        _row("centre of mass", f"x {c[0]:11.4f}   y {c[1]:11.4f}   z {c[2]:11.4f} mm"),
+        _row("unbalance", f"x {u[0]:11.2f}   y {u[1]:11.2f}   g*mm (about Z)"),
+        _row("  magnitude", f"{props.unbalance_magnitude:14.2f} g*mm"),
+        _row("  heavy spot", _angle_text(heavy_spot_deg(u, props.mass))),
+        _row("inertia about Z", f"{props.inertia_z:14.6g} g*mm^2  ({props.inertia_z * 1e-9:.6g} kg*m^2)"),
+        _row("inertia tensor", "g*mm^2, about the origin:"),
+    ]
+    lines += [_row("", "  ".join(f"{v:14.6g}" for v in row)) for row in inertia]
+    return [indent + line for line in lines]
+
+
+# ------------------------------------------------------------------ inputs
+def _density(density: str | None, material_name: str | None, *, default: str = DEFAULT_MATERIAL,
+             default_how: str = "default"):
+    """(g/cm^3, label) from --density or --material, else the default material."""
+    from .materials import custom, material
+
+    if density is not None:
+        rho = custom(to_internal(density, "density", "--density"), "--density").density
+        return rho, f"{rho:g} g/cm^3 (--density)"
+    m = material(material_name if material_name is not None else default, "--material")
+    how = "--material" if material_name is not None else default_how
+    return m.density, f"{m.density:g} g/cm^3 ({m.name}, {how}; {m.source})"
+
+
+def _refuse(option: str, value, why: str) -> None:
+    if value is not None:
+        raise BadInput(f"{option}: {why}")
+
+
+def _scale_mm(units: str | None, where: str) -> float:
+    from .dxf_outline import UNIT_NAMES_MM
+
+    if units is None:
+        return 1.0
+    if units not in UNIT_NAMES_MM:
+        raise BadInput(f"{where}: unknown unit {units!r}; allowed: mm, in, cm, m")
+    return UNIT_NAMES_MM[units]
+
+
+def scaled_to_mm(props: MassProps, scale: float) -> MassProps:
+    """Properties computed in a drawing unit, expressed in mm: every length times `scale`.
+
+    Volume and mass go as scale^3, first moments as scale^4, second moments
+    as scale^5 (the density was already per mm^3 of the drawing unit cube).
+    """
+    s3 = scale ** 3
+    return MassProps(props.mass * s3, props.first_moment * s3 * scale, props.second_moment * s3 * scale ** 2,
+                     props.volume * s3)
+
+
+# ------------------------------------------------------------------ the four roads
+def _inspect_dxf(path: Path, *, thickness, density, material_name, units) -> dict:
+    from .section import inspect_dxf
+
+    if thickness is None:
+        raise BadInput(f"--thickness: {path} is a plane outline; give the web thickness, "
+                       "e.g. --thickness 18 (mm) or --thickness \"0.71 in\"")
+    t = to_internal(thickness, "length", "--thickness")
+    if not t > 0:
+        raise BadInput(f"--thickness: must be > 0 mm, got {thickness!r}")
+    rho, rho_label = _density(density, material_name)
+    try:
+        props = inspect_dxf(path, thickness=t, density_g_cm3=rho, units=units)
+    except BadInput as exc:
+        # the outline reader speaks the job's key; on the command line it is --units
+        raise BadInput(str(exc).replace('give outline_units = "mm" or "in"', "give --units mm or --units in")
+                       .replace("inspect outline_units:", "--units:")) from None
+    unit_label = f"{units} (--units)" if units else "from the drawing's $INSUNITS"
+    out = figures(props)
+    out.update(source=SOURCES["dxf"], file=str(path), thickness_mm=t, density_g_cm3=rho,
+               drawing_units=units or "header")
+    lines = [f"{path.name}: {SOURCES['dxf']}",
+             _row("drawing units", unit_label),
+             _row("thickness", f"{t:g} mm, z from 0 to {t:g}"),
+             _row("density", rho_label), ""] + props_lines(props)
+    return {"json": out, "lines": lines}
+
+
+def _step_densities(names: list[str], density, material_name):
+    """[(g/cm^3, label)] per solid: plugs ("plug-N") at the default plug alloy
+    unless the file holds one solid, every other solid at the given density."""
+    body = _density(density, material_name)
+    if len(names) == 1:
+        return [body]
+    plug = _density(None, None, default=DEFAULT_PLUG_MATERIAL, default_how="default for plugs")
+    return [plug if n.lower().startswith("plug") else body for n in names]
+
+
+def _inspect_step(path: Path, *, density, material_name) -> dict:
+    from .export import read_step
+    from .verify import solid_massprops
+
+    solids = read_step(path)
+    if not solids:
+        raise BadInput(f"{path}: the STEP file holds no shapes")
+    names = [n for n, _ in solids]
+    dens = _step_densities(names, density, material_name)
+    parts = []
+    for (name, shape), (rho, _) in zip(solids, dens):
+        try:
+            parts.append(solid_massprops(shape, rho))
+        except VerificationFailed as exc:
+            raise BadInput(f"{path}: shape {name!r} is not a closed solid ({exc})") from None
+    # the sum is what verify.step_massprops computes; kept per solid to show each share
+    total = sum(parts, MassProps.zero())
+    per_solid = {n: rho for n, (rho, _) in zip(names, dens)}
+    out = figures(total)
+    out.update(source=SOURCES["step"], file=str(path),
+               density_g_cm3=(dens[0][0] if len({r for r, _ in dens}) == 1 else per_solid),
+               solids=[{"name": n, "density_g_cm3": rho, "density_from": label, "mass_g": p.mass,
+                        "volume_mm3": p.volume, "unbalance_gmm": [float(v) for v in p.unbalance]}
+                       for n, (rho, label), p in zip(names, dens, parts)])
+    lines = [f"{path.name}: {SOURCES['step']}, {len(solids)} solid{'s' if len(solids) > 1 else ''}"]
+    for n, (rho, label), p in zip(names, dens, parts):
+        lines.append(f"  {n}: {p.mass:.3f} g, {p.volume:.1f} mm^3, at {label}")
+    lines += [""] + props_lines(total)
+    return {"json": out, "lines": lines}
+
+
+def _inspect_stl(path: Path, *, density, material_name, units) -> dict:
+    from .verify import mesh_massprops
+
+    scale = _scale_mm(units, "--units")
+    rho, rho_label = _density(density, material_name)
+    # trimesh integrates in the file's unit at rho per mm^3-of-that-unit; scaling afterwards is exact
+    props = scaled_to_mm(mesh_massprops(path, rho), scale)
+    out = figures(props)
+    out.update(source=SOURCES["stl"], file=str(path), density_g_cm3=rho, mesh_units=units or "mm")
+    lines = [f"{path.name}: {SOURCES['stl']}",
+             _row("mesh units", f"{units} (--units)" if units else "mm (STL carries no unit; --units to change)"),
+             _row("density", rho_label), ""] + props_lines(props)
+    return {"json": out, "lines": lines}
+
+
+def _feature_label(f) -> str:
+    from .features import Hole, Plug
+
+    if isinstance(f, Hole):
+        if f.through:
+            depth = "through"
+        elif f.point_angle >= 180.0:
+            depth = f"{f.depth:g} deep, flat bottom"
+        else:
+            depth = f"{f.depth:g} deep + {f.point_angle:g} deg point"
+        return f"hole d{f.diameter:g} at ({f.x:g}, {f.y:g}), {depth}, {f.face} face"
+    if isinstance(f, Plug):
+        what = f.material if f.material is not None else f"{f.density:g} g/cm^3"
+        return f"plug d{f.diameter:g} x {f.length:g} at ({f.x:g}, {f.y:g}), {what}"
+    return (f"pocket r {f.r_inner:g}..{f.r_outer:g}, {f.angle_start:g}..{f.angle_end:g} deg, "
+            f"{f.depth:g} deep, {f.face} face")
+
+
+_ROW = 14  # label width of the job table
+
+
+def _table_row(label: str, mass: float, u, iz: float) -> str:
+    ux, uy = _clean(u, 2)
+    return f"  {label:<{_ROW}}{mass:12.3f}{ux:12.2f}{uy:12.2f}{iz:16.6g}"
+
+
+def _web_lines(job, web, bare: MassProps, rows: list[dict], changes: list[MassProps], total: MassProps,
+               target, needed, tol: float) -> list[str]:
+    shape = f"{web.diameter:g} mm disc" if web.diameter is not None else f"outline {web.outline.name}"
+    lines = ["", f"web {web.name}: {shape}, {web.thickness:g} mm thick, {web.material.name} "
+                 f"{web.density:g} g/cm^3, pin bore {web.pin_bore:g} mm at y = {job.engine.crank_radius:g} mm"]
+    if rows:
+        lines.append("  features (web frame, mm):")
+        lines += [f"    {i}  {row['label']}" for i, row in enumerate(rows, 1)]
+    else:
+        lines.append("  features: none in the job")
+    lines += [f"  {'':<{_ROW}}{'mass g':>12}{'Ux g*mm':>12}{'Uy g*mm':>12}{'Iz g*mm^2':>16}",
+              _table_row("bare web", bare.mass, bare.unbalance, bare.inertia_z)]
+    for i, (row, change) in enumerate(zip(rows, changes), 1):
+        lines.append(_table_row(f"{i} {row['feature']['kind']}", change.mass, change.unbalance, change.inertia_z))
+    within = "within" if max(map(abs, needed)) <= tol else "not within"
+    lines += [_table_row("total", total.mass, total.unbalance, total.inertia_z),
+              f"  {'target':<{_ROW}}{'':12}{target[0]:12.2f}{target[1]:12.2f}",
+              f"  {'still needed':<{_ROW}}{'':12}{needed[0] + 0.0:12.2f}{needed[1] + 0.0:12.2f}"
+              f"   ({within} the +-{tol:.2f} g*mm tolerance)"]
+    c = _clean(total.com, 4)
+    lines.append(f"  total: centre of mass x {c[0]:.4f}  y {c[1]:.4f}  z {c[2]:.4f} mm; heavy spot "
+                 f"{_angle_text(heavy_spot_deg(total.unbalance, total.mass))}")
+    return lines
+
+
+def _inspect_job(path: Path) -> dict:
+    from . import job as jobmod
+    from .features import Plug, feature_massprops, feature_to_table, plug_density_of
+    from .pipeline import web_section
+
+    job = jobmod.load(path)
+    plug_default = job.correction.plug_material.density if job.correction.plug_material else None
+    webs_json, lines = [], [f"{path.name}: {SOURCES['job']}"]
+    for web in job.webs:
+        section = web_section(job, web)
+        bare = section.massprops()
+        rows, changes = [], []
+        for f in web.features:
+            # as the pipeline does: a plug naming neither material nor density takes the job's plug_material
+            override = plug_default if isinstance(f, Plug) and f.material is None and f.density is None else None
+            change = feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3,
+                                       plug_density=override)
+            row = {"feature": feature_to_table(f), "label": _feature_label(f), "change": change_figures(change)}
+            if isinstance(f, Plug):
+                row["plug_density_g_cm3"] = override if override is not None else plug_density_of(f)
+            rows.append(row)
+            changes.append(change)
+        total = sum(changes, bare)
+        target = job.target_gmm(web)
+        needed = (target[0] - float(total.unbalance[0]), target[1] - float(total.unbalance[1]))
+        tol = job.tolerance_gmm * web.share
+        lines += _web_lines(job, web, bare, rows, changes, total, target, needed, tol)
+        webs_json.append({"name": web.name, "thickness_mm": web.thickness, "density_g_cm3": web.density,
+                          "material": web.material.name, "bare": figures(bare), "features": rows,
+                          "total": figures(total), "target_gmm": list(target), "still_needed_gmm": list(needed),
+                          "tolerance_gmm": tol, "within_tolerance": max(map(abs, needed)) <= tol})
+    return {"json": {"source": SOURCES["job"], "file": str(path), "job": job.name, "webs": webs_json},
+            "lines": lines}
+
+
+# ------------------------------------------------------------------ entry point
+def inspect_file(path: Path, *, thickness: str | None = None, density: str | None = None,
+                 material_name: str | None = None, units: str | None = None) -> dict:
+    """Mass properties of the web in `path`: {"json": dict, "lines": [str]}.
+
+    thickness : DXF only, mm or a unit string;  density : g/cm^3 or a unit
+    string, or material_name (default steel; not for a job, which names its
+    own);  units : "mm" | "in" | "cm" | "m", for a unitless DXF or an STL.
+    Raises BadInput for an unknown file type, a missing file, or an option
+    that does not apply to the file.
+    """
+    path = Path(path)
+    suffix = path.suffix.lower()
+    kinds = {".dxf": "dxf", ".step": "step", ".stp": "step", ".stl": "stl", ".toml": "job"}
+    if suffix not in kinds:
+        raise BadInput(f"{path}: unknown file type '{suffix or '(none)'}'; inspect reads {KNOWN}")
+    if not path.is_file():
+        raise BadInput(f"{path}: file not found")
+    kind = kinds[suffix]
+    if kind != "dxf":
+        _refuse("--thickness", thickness, f"only a DXF outline needs a thickness; {path.name} carries its own")
+    if kind == "step":
+        _refuse("--units", units, f"a STEP file carries its own unit; --units is for a unitless DXF or an STL")
+    if kind == "job":
+        _refuse("--units", units, "a job names its outline's units itself (outline_units)")
+        _refuse("--density", density, "a job names each web's material itself (web.material or web.density)")
+        _refuse("--material", material_name, "a job names each web's material itself (web.material or web.density)")
+        return _inspect_job(path)
+    if kind == "dxf":
+        return _inspect_dxf(path, thickness=thickness, density=density, material_name=material_name, units=units)
+    if kind == "step":
+        return _inspect_step(path, density=density, material_name=material_name)
+    return _inspect_stl(path, density=density, material_name=material_name, units=units)
