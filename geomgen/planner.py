@@ -237,14 +237,15 @@ class _Sampler:
         a = np.radians(abs_deg)
         return clearance(-rr * np.sin(a), rr * np.cos(a))
 
-    def rows(self, diameter: float, wall: float, odd: bool) -> list:
-        key = (diameter, wall, odd)
+    def rows(self, diameter: float, wall: float, odd: bool, *, max_angle: float = 180.0) -> list:
+        key = (diameter, wall, odd, max_angle)
         if key not in self._rows:
-            self._rows[key] = list(self._make_rows(diameter, wall, odd))
+            self._rows[key] = list(self._make_rows(diameter, wall, odd, max_angle))
         return self._rows[key]
 
-    def _make_rows(self, diameter, wall, odd):
-        """For each radius, the most effective row of up to MAX_PATTERN centres."""
+    def _make_rows(self, diameter, wall, odd, max_angle):
+        """For each radius, the most effective row of up to MAX_PATTERN centres,
+        none further than `max_angle` deg from the line."""
         need = 0.5 * diameter + 1e-6
         for i, radius in enumerate(self.radii):
             chord = diameter + wall
@@ -269,7 +270,7 @@ class _Sampler:
                 if j >= len(free):
                     break
                 a = float(free[j])
-                if a > 180.0 - 0.5 * spacing + 1e-9:
+                if a > max_angle - 0.5 * spacing + 1e-9:
                     break
                 groups.append([a, -a])
                 last, count = a, count + 2
@@ -518,9 +519,15 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
                        f"already within tolerance: off by {need:.1f} g*mm, allowed {tolerance:.1f} g*mm", "none")
     clearance = Clearance(section=section, existing=existing, limits=limits, keep_out=keep_out)
     if lighten > 0:
+        if method not in ("holes", "auto"):
+            raise BadInput(f"correction.lighten: lightening is planned with holes; set correction.kind to "
+                           f"'holes' or 'auto', not {method!r}")
+        alone = plan_web(name=name, section=section, existing=existing, target=target, tolerance=tolerance,
+                         method="holes", limits=limits, keep_out=keep_out, _hint=_hint)
+        alone_mass = alone.predicted.mass - alone.before.mass
         return _plan_lighten(name=name, section=section, clearance=clearance, before=before, need_vec=need_vec,
                              target=target, tolerance=tolerance, limits=limits, lighten=lighten,
-                             method=method)
+                             want_mass=alone_mass - lighten)
     remove_axis = _direction_angle(-need_vec)
     add_axis = _direction_angle(need_vec)
     blind_max = thickness - limits.min_wall
@@ -606,16 +613,14 @@ def _raise_infeasible(name, need, reaches, limits, methods, section, existing, t
 
 
 # ------------------------------------------------------------------ lightening
-def _plan_lighten(*, name, section, clearance, before, need_vec, target, tolerance, limits, lighten, method):
+def _plan_lighten(*, name, section, clearance, before, need_vec, target, tolerance, limits, lighten, want_mass):
     """Take `lighten` g more off the web than the correction alone, holding the target.
 
-    Two rows of holes: one opposite the needed change (it makes the change)
-    and one on the other side (its mass is the extra); both depths solved
+    want_mass : the mass change wanted, g (the correction alone's, less `lighten`).
+    Two rows of holes, each on its own half of the web: one opposite the
+    needed change and one on the other side; their depths are solved
     together from the two linear conditions on mass and unbalance.
     """
-    if method not in ("holes", "auto"):
-        raise BadInput(f"correction.lighten: lightening is planned with holes; set correction.kind to "
-                       f"'holes' or 'auto', not {method!r}")
     thickness, rho = section.thickness, section.density_g_cm3
     need = float(np.linalg.norm(need_vec))
     if need > 1e-9:
@@ -633,9 +638,9 @@ def _plan_lighten(*, name, section, clearance, before, need_vec, target, toleran
             top = hi - pl
             if top < MIN_HOLE_DEPTH:
                 continue
-            main = next((r for r in samp_main.rows(d, limits.min_wall, odd=False)
+            main = next((r for r in samp_main.rows(d, limits.min_wall, odd=False, max_angle=90.0)
                          if sum(len(g) for g in r.groups) >= n), None)
-            back = next((r for r in samp_back.rows(d, limits.min_wall, odd=False)
+            back = next((r for r in samp_back.rows(d, limits.min_wall, odd=False, max_angle=90.0)
                          if sum(len(g) for g in r.groups) >= n), None)
             if main is None or back is None:
                 continue
@@ -655,9 +660,6 @@ def _plan_lighten(*, name, section, clearance, before, need_vec, target, toleran
             base = eff(MIN_HOLE_DEPTH, MIN_HOLE_DEPTH)
             d1 = eff(MIN_HOLE_DEPTH + 1, MIN_HOLE_DEPTH) - base
             d2 = eff(MIN_HOLE_DEPTH, MIN_HOLE_DEPTH + 1) - base
-            # the mass a correction alone would take, at this row's mean lever, plus the extra asked
-            pure_mass = need / max(main.lever(g) / (2 * g), 1e-9)
-            want_mass = -(pure_mass + lighten)
             a = np.array([[d1.mass, d2.mass], [float(np.dot(d1.unbalance, u)), float(np.dot(d2.unbalance, u))]])
             rhs = np.array([want_mass - base.mass, float(np.dot(need_vec, u)) - float(np.dot(base.unbalance, u))])
             try:
@@ -681,6 +683,7 @@ def _plan_lighten(*, name, section, clearance, before, need_vec, target, toleran
     feats = _machining_order(f1 + f2)
     predicted = before + effect
     why = (f"lightening: {len(f1)} holes opposite the needed change and {len(f2)} on the other side, depths "
-           f"solved together so the web loses {-effect.mass:.1f} g and still reaches its target")
+           f"solved together so the web loses {-effect.mass:.1f} g ({-want_mass - lighten:.1f} g the balance "
+           f"correction alone would take, plus the {lighten:g} g asked) and still reaches its target")
     binding = _binding(feats, section=section, region_parts=None, limits=limits, thickness=thickness)
     return WebPlan(name, "holes", tuple(feats), before, predicted, tuple(target), tolerance, why, binding)
