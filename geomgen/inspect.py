@@ -334,7 +334,7 @@ def inspect_file(path: Path, *, thickness: str | None = None, density: str | Non
     if kind != "dxf":
         _refuse("--thickness", thickness, f"only a DXF outline needs a thickness; {path.name} carries its own")
     if kind == "step":
-        _refuse("--units", units, f"a STEP file carries its own unit; --units is for a unitless DXF or an STL")
+        _refuse("--units", units, "a STEP file carries its own unit; --units is for a unitless DXF or an STL")
     if kind == "job":
         _refuse("--units", units, "a job names its outline's units itself (outline_units)")
         _refuse("--density", density, "a job names each web's material itself (web.material or web.density)")
