@@ -54,9 +54,10 @@ def limits_of(job) -> Limits:
                   drills=c.drills, point_angle=c.point_angle, depth_step=c.depth_step)
 
 
-def _props(features, section, plug_density=None) -> MassProps:
-    return sum((feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3,
-                                  plug_density=plug_density) for f in features), MassProps.zero())
+def _props(features, section) -> MassProps:
+    """The change the features make to the bare web (each plug with its own material)."""
+    return sum((feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3)
+                for f in features), MassProps.zero())
 
 
 @dataclass(frozen=True)
@@ -96,7 +97,7 @@ def plan_webs(job, *, existing=None, targets=None, tolerances=None, method=None,
         target = targets[web.name] if targets else job.target_gmm(web)
         tol = tolerances[web.name] if tolerances else job.tolerance_gmm * web.share
         if method == "none":
-            before = section.massprops() + _props(feats, section, c.plug_material.density)
+            before = section.massprops() + _props(feats, section)
             plan = WebPlan(web.name, "none", (), before, before, tuple(target), tol,
                            "build: the job's own features only", "none")
         else:
@@ -198,14 +199,12 @@ def _summary(p: MassProps) -> dict:
             "unbalance_gmm": _vec(s["unbalance_gmm"]), "inertia_z_gmm2": _num(s["inertia_z_gmm2"])}
 
 
-def _feature_rows(features, section, plug_density):
+def _feature_rows(features, section):
     rows = []
     for f in features:
         t = feature_to_table(f)
         t = {k: (_num(v) if isinstance(v, float) else v) for k, v in t.items()}
-        fx = feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3,
-                               plug_density=plug_density if isinstance(f, Plug) and f.material is None
-                               and f.density is None else None)
+        fx = feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3)
         t["effect"] = {"mass_g": _num(fx.mass), "unbalance_gmm": _vec(fx.unbalance)}
         rows.append(t)
     return rows
@@ -236,8 +235,8 @@ def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], 
             "why": p.why,
             "binding": p.binding,
             "considered": list(p.considered),
-            "existing_features": _feature_rows(w.existing, w.section, job.correction.plug_material.density),
-            "planned_features": _feature_rows(p.features, w.section, job.correction.plug_material.density),
+            "existing_features": _feature_rows(w.existing, w.section),
+            "planned_features": _feature_rows(p.features, w.section),
             "before": _summary(p.before),
             "predicted": _summary(p.predicted),
             "residual_gmm": _vec(resid),
@@ -293,7 +292,9 @@ def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
 
     out, solids = [], []
     for w in webs:
-        solid = build_web(w.section, w.all_features, name=w.spec.name, min_wall=0.0)
+        # the solid's own wall check, independent of the planner, holds every web to the job's walls
+        solid = build_web(w.section, w.all_features, name=w.spec.name, min_wall=job.correction.min_wall,
+                          pin_wall=job.correction.pin_wall)
         paths = export_web(solid, folder, tolerance=job.output.stl_tolerance,
                            angular_tolerance=job.output.stl_angular_tolerance)
         v = verify_web(solid, w.plan.predicted, paths, tolerance=job.output.stl_tolerance)
@@ -489,7 +490,7 @@ def run_trim(args) -> int:
     targets, tolerances = {}, {}
     for web in job.webs:
         section = web_section(job, web)
-        now = section.massprops() + _props(existing[web.name], section, job.correction.plug_material.density)
+        now = section.massprops() + _props(existing[web.name], section)
         targets[web.name] = tuple(now.unbalance + changes[web.name])
         share = float(np.hypot(*changes[web.name])) / unbalance
         # 1 % of the measured residual per web keeps the pair within 2 % of it

@@ -120,9 +120,11 @@ def _at(radius: float, angle_deg: float) -> tuple[float, float]:
     return (-radius * math.sin(a), radius * math.cos(a))
 
 
-def _total(features, *, thickness, web_density, plug_density) -> MassProps:
-    return sum((feature_massprops(f, thickness=thickness, web_density=web_density,
-                                  plug_density=plug_density) for f in features), MassProps.zero())
+def _total(features, *, thickness, web_density, plug_density=None) -> MassProps:
+    """The change the features make.  Every plug carries its own material or density,
+    so `plug_density` (kept for the call sites' symmetry) is not used to override it."""
+    return sum((feature_massprops(f, thickness=thickness, web_density=web_density) for f in features),
+               MassProps.zero())
 
 
 def _round_to(value: float, step: float) -> float:

@@ -35,6 +35,8 @@ _OVERSHOOT = 1.0
 MIN_SOLID_WALL_MM = 0.05
 #: sagitta used to flatten footprints for the plan-view wall check, mm
 _CHECK_CHORD_MM = 1e-3
+#: flattened rings lie within one chord of the true ones: a wall short by less than two is not refused
+_CHECK_SLACK_MM = 2 * _CHECK_CHORD_MM
 #: relative volume agreement demanded of a clean()ed shape (craft.md)
 _CLEAN_REL = 1e-9
 
@@ -147,7 +149,7 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_w
         if not outer.contains(fp):
             refuse(i, f, "breaks through the rim", -fp.difference(outer).area ** 0.5, fp.difference(outer))
         wall = outer.exterior.distance(fp)
-        if wall < limit:
+        if wall < limit - _CHECK_SLACK_MM:
             refuse(i, f, "comes too close to the rim", wall, shapely.shortest_line(outer.exterior, fp))
         smallest = min(smallest, wall)
         for k, bore in enumerate(bores):
@@ -156,7 +158,7 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_w
             if fp.intersects(bore):
                 refuse(i, f, f"cuts into {label}", 0.0, fp.intersection(bore))
             wall = bore.distance(fp)
-            if wall < need:
+            if wall < need - _CHECK_SLACK_MM:
                 raise BadInput(f"web {name}: feature {i} ({f.kind}) comes too close to {label} at "
                                f"{_where(shapely.shortest_line(bore, fp))}; smallest wall {wall:.3g} mm, "
                                f"allowed >= {need:g} mm")
@@ -182,7 +184,7 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_w
             (a0, a1), (b0, b1) = ranges[i], ranges[j]
             d_z = max(0.0, max(a0, b0) - min(a1, b1))
             wall = math.hypot(d_plan, d_z)
-            if wall < limit:
+            if wall < limit - _CHECK_SLACK_MM:
                 what = "overlaps" if wall == 0.0 else "comes too close to"
                 geom = (prints[i].intersection(prints[j]) if d_plan == 0.0
                         else shapely.shortest_line(prints[i], prints[j]))
