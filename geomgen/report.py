@@ -1,0 +1,367 @@
+"""report.html: one self-contained page a designer can read, print and send.
+
+Everything is inline (CSS, the web pictures as SVG drawn here from the exact
+loops, the study figure as SVG from geomgen.plots); nothing is fetched and no
+script runs.  The page carries no date or path, so the same job gives the
+same bytes.  Numbers come from the plan.json document and the study result;
+nothing is recomputed here.
+"""
+
+from __future__ import annotations
+
+import html
+import math
+import re
+
+from .features import Pocket, Plug, footprint
+
+_CSS = """
+:root { --ink: #1d2733; --muted: #5b6673; --line: #c9d1da; --soft: #f3f5f8; --warn: #8a3b12;
+        --removed: #b8322a; --added: #1f5f8b; --before: #d9822b; --after: #2a7d4f; }
+* { box-sizing: border-box; }
+body { font: 15px/1.45 "Helvetica Neue", Arial, sans-serif; color: var(--ink); margin: 0 auto;
+       max-width: 1120px; padding: 24px 28px 48px; background: #fff; }
+h1 { font-size: 26px; margin: 0 0 2px; }
+h2 { font-size: 19px; margin: 30px 0 8px; padding-bottom: 4px; border-bottom: 2px solid var(--ink); }
+h3 { font-size: 16px; margin: 18px 0 6px; }
+p.sub { color: var(--muted); margin: 0 0 14px; }
+.caution { border: 3px solid var(--warn); background: #fff6ee; padding: 10px 16px; margin: 12px 0 18px; }
+.caution strong { color: var(--warn); font-size: 16px; letter-spacing: .02em; }
+.caution ul { margin: 6px 0 0 18px; padding: 0; }
+.figures { display: grid; grid-template-columns: repeat(auto-fill, minmax(200px, 1fr)); gap: 10px; }
+.figure { background: var(--soft); border-left: 4px solid var(--ink); padding: 8px 12px; }
+.figure .k { color: var(--muted); font-size: 12.5px; }
+.figure .v { font-size: 19px; font-weight: 600; }
+.ok { color: var(--after); } .bad { color: var(--removed); }
+table { border-collapse: collapse; margin: 6px 0 12px; font-size: 13.5px; }
+th, td { border: 1px solid var(--line); padding: 3px 8px; text-align: right; vertical-align: top; }
+th { background: var(--soft); font-weight: 600; }
+td.l, th.l { text-align: left; }
+.pair { display: flex; flex-wrap: wrap; gap: 18px; }
+.pair figure { margin: 0; flex: 1 1 420px; }
+figcaption { font-size: 13px; color: var(--muted); }
+svg.web { width: 100%; max-width: 520px; height: auto; border: 1px solid var(--line); background: #fff; }
+.study svg { width: 100%; height: auto; }
+.note { font-size: 13px; color: var(--muted); }
+.legend span { display: inline-block; margin-right: 16px; font-size: 13px; }
+.sw { display: inline-block; width: 12px; height: 12px; border: 1.5px solid; vertical-align: -1px; margin-right: 4px; }
+@media print { body { max-width: none; padding: 0; font-size: 12px; } h2 { break-after: avoid; }
+  .web-block, table, figure { break-inside: avoid; } }
+"""
+
+
+def _e(text) -> str:
+    return html.escape(str(text), quote=True)
+
+
+def _n(value, digits: int = 1) -> str:
+    """A number for the page; '-0.0' reads as a sign that means nothing, so it is dropped."""
+    text = f"{value:,.{digits}f}"
+    return text[1:] if re.fullmatch(r"-0\.?0*", text.replace(",", "")) else text
+
+
+def _vec(v, digits: int = 1) -> str:
+    return ", ".join(_n(x, digits) for x in v)
+
+
+_LEFT = ' class="l"'
+
+
+def _table(head: list[str], rows: list[list[str]], *, left: int = 1) -> str:
+    """An HTML table; the first `left` columns are text (left-aligned), the rest numbers."""
+    def cells(row, tag):
+        return "".join(f"<{tag}{_LEFT if i < left else ''}>{c}</{tag}>" for i, c in enumerate(row))
+    body = "".join(f"<tr>{cells(r, 'td')}</tr>" for r in rows)
+    return f"<table><thead><tr>{cells(head, 'th')}</tr></thead><tbody>{body}</tbody></table>"
+
+
+# ------------------------------------------------------------------ web pictures
+def _path(points) -> str:
+    """SVG path data of a closed polygon given in the web frame (y up), mm; SVG's y runs down."""
+    pts = " L".join(f"{x:.2f},{-y:.2f}" for x, y in points)
+    return f"M{pts} Z"
+
+
+def web_svg(w, *, features, com_before, com_after, title: str) -> str:
+    """The web seen from its outer face, as inline SVG (viewBox in mm).
+
+    w : pipeline.WebWork;  features : the features to draw;  com_* : (x, y, z) mm.
+    """
+    sec = w.section
+    r = sec.rim_radius_max
+    pad = 16.0
+    half = r + pad
+    chord = max(0.02, r / 800.0)
+    out = [f'<svg class="web" xmlns="http://www.w3.org/2000/svg" viewBox="{-half:.1f} {-half - 6:.1f} '
+           f'{2 * half:.1f} {2 * half + 12:.1f}" role="img" aria-label="{_e(title)}">']
+    body = _path(sec.outer.oriented(True).points(chord))
+    for b in sec.bores:
+        body += " " + _path(b.oriented(False).points(chord))
+    out.append(f'<path d="{body}" fill="#e4e8ee" stroke="#1d2733" stroke-width="0.6" fill-rule="evenodd"/>')
+    for i, f in feature_numbers(w, features):
+        pts = footprint(f).oriented(True).points(chord)
+        dash = ' stroke-dasharray="2,1.2"' if f.face == "inner" else ""
+        if isinstance(f, Plug):
+            style = 'fill="#1f5f8b" fill-opacity="0.85" stroke="#1f5f8b"'
+        else:
+            style = 'fill="#ffffff" stroke="#b8322a"'
+        out.append(f'<path d="{_path(pts)}" {style} stroke-width="0.6"{dash}/>')
+        if isinstance(f, Pocket):
+            mid = math.radians(f.angle_start + 0.5 * f.span_deg + 90.0)
+            rm = 0.5 * (f.r_inner + f.r_outer)
+            tx, ty = rm * math.cos(mid), rm * math.sin(mid)
+        else:
+            tx, ty = f.x, f.y
+        colour = "#ffffff" if isinstance(f, Plug) else "#b8322a"
+        out.append(f'<text x="{tx:.2f}" y="{-ty + 1.6:.2f}" font-size="4.6" text-anchor="middle" '
+                   f'fill="{colour}" font-weight="bold">{_e(i)}</text>')
+    # directions: crankpin up (+Y), counterweight down (-Y), crank axis cross
+    out.append(f'<line x1="0" y1="{-(r + 4):.1f}" x2="0" y2="{r + 4:.1f}" stroke="#5b6673" stroke-width="0.3" '
+               'stroke-dasharray="4,1.5,1,1.5"/>')
+    out.append('<path d="M-4,0 H4 M0,-4 V4" stroke="#1d2733" stroke-width="0.5"/>')
+    out.append(f'<text x="1.5" y="{-(r + 6):.1f}" font-size="4.6" fill="#1d2733">crankpin (+Y)</text>')
+    out.append(f'<text x="1.5" y="{r + 10:.1f}" font-size="4.6" fill="#1d2733">counterweight (−Y)</text>')
+    out.append(f'<text x="{-half + 2:.1f}" y="{-half:.1f}" font-size="4.6" font-weight="bold" fill="#1d2733">'
+               f'{_e(title)}</text>')
+    # labels well to the side with a leader, clear of the crank-axis cross and of each other
+    for com, colour, label, dx, anchor in ((com_before, "#d9822b", "COM before", -12.0, "end"),
+                                           (com_after, "#2a7d4f", "COM after", 12.0, "start")):
+        if com is None:
+            continue
+        x, y = com[0], -com[1]
+        out.append(f'<circle cx="{x:.2f}" cy="{y:.2f}" r="1.6" fill="none" stroke="{colour}" stroke-width="0.7"/>'
+                   f'<path d="M{x - 2.6:.2f},{y:.2f} H{x + 2.6:.2f} M{x:.2f},{y - 2.6:.2f} V{y + 2.6:.2f}" '
+                   f'stroke="{colour}" stroke-width="0.5"/>'
+                   f'<line x1="{x + 0.2 * dx:.2f}" y1="{y:.2f}" x2="{x + 0.9 * dx:.2f}" y2="{y:.2f}" '
+                   f'stroke="{colour}" stroke-width="0.3"/>'
+                   f'<text x="{x + dx:.2f}" y="{y + 1.4:.2f}" font-size="3.8" text-anchor="{anchor}" '
+                   f'fill="{colour}">{label}</text>')
+    out.append("</svg>")
+    return "".join(out)
+
+
+def feature_numbers(w, features):
+    """(label, feature) with the numbers of the sheet: E1.. for existing features, then the new ones."""
+    n_existing = len(w.existing)
+    index = {id(f): k for k, f in enumerate(w.all_features, start=1)}
+    for f in features:
+        k = index.get(id(f))
+        yield (f"{'E' if k <= n_existing else ''}{k}", f)
+
+
+# ------------------------------------------------------------------ sections
+def _cautions(doc: dict) -> str:
+    items = "".join(f"<li>{_e(c)}</li>" for c in doc.get("cautions", []))
+    return (f'<div class="caution" role="note"><strong>Read this first</strong><ul>{items}</ul></div>')
+
+
+def _figure(k: str, v: str, cls: str = "") -> str:
+    return f'<div class="figure"><div class="k">{k}</div><div class="v {cls}">{v}</div></div>'
+
+
+def _summary(doc: dict) -> str:
+    c, corr = doc["crank"], doc["correction"]
+    iso = c["iso_21940_11"]
+    resid = math.hypot(*c["residual_gmm"])
+    within = c["residual_bf_points"] <= corr["tolerance_bf_points"]
+    iso_ok = resid <= iso["permissible_residual_gmm"]
+    return "".join([
+        '<div class="figures">',
+        _figure("balance factor asked", _n(c["balance_factor_asked"], 3)),
+        _figure("balance factor achieved (exact solids)", _n(c["balance_factor_achieved"], 4)),
+        _figure("crank residual unbalance", f"{_n(resid, 1)} g·mm"),
+        _figure("residual in balance-factor points",
+                f"{_n(c['residual_bf_points'], 3)} of ±{_n(corr['tolerance_bf_points'], 2)}",
+                "ok" if within else "bad"),
+        _figure(f"ISO 21940-11 G{_n(iso['grade_mm_s'], 1)} permissible residual",
+                f"{_n(iso['permissible_residual_gmm'], 1)} g·mm", "ok" if iso_ok else "bad"),
+        _figure("bob weight", f"{_n(c['bob_weight_g'], 1)} g"),
+        "</div>",
+        f'<p class="note">The crank residual is the two webs summed in the crank frame (web a\'s), from the exact '
+        f'solids, against the target {_vec(c["target_gmm"])} g·mm. ISO 21940-11: {_e(iso["formula"])}, with '
+        f'm = {_n(iso["rotor_mass_kg"], 3)} kg ({_e(iso["rotor_mass_note"])}) at {_n(doc["engine"]["max_rpm"], 0)} rpm. '
+        f'Couple left by the webs: {_vec(c["couple_gmm2"], 0)} g·mm² ({_e(c["couple_note"])}).</p>',
+    ])
+
+
+def _engine(doc: dict) -> str:
+    e = doc["engine"]
+    rows = [["stroke", f"{_n(e['stroke_mm'], 2)} mm"], ["rod length (centres)", f"{_n(e['rod_length_mm'], 2)} mm"],
+            ["max speed", f"{_n(e['max_rpm'], 0)} rpm"], ["cylinder tilt", f"{_n(e['cylinder_tilt_deg'], 1)} deg"],
+            ["balance factor asked", _n(e["balance_factor"], 3)]]
+    masses = [[f"reciprocating: {_e(k)}", f"{_n(v, 1)} g"] for k, v in e["reciprocating_g"].items()]
+    masses.append(["<b>reciprocating, total</b>", f"<b>{_n(e['m_reciprocating_g'], 1)} g</b>"])
+    masses += [[f"rotating: {_e(k)}", f"{_n(v, 1)} g"] for k, v in e["rotating_g"].items()]
+    masses.append(["<b>rotating, total</b> (at the crankpin radius)", f"<b>{_n(e['m_rotating_g'], 1)} g</b>"])
+    masses.append(["bob weight = rotating + balance factor × reciprocating",
+                   f"<b>{_n(doc['crank']['bob_weight_g'], 1)} g</b>"])
+    return ('<div class="pair"><div>' + _table(["engine", "value"], rows) + "</div><div>"
+            + _table(["weighed parts", "mass"], masses) + "</div></div>")
+
+
+def _balance_table(doc: dict) -> str:
+    rows = []
+    for w in doc["webs"]:
+        achieved = w.get("exact", w["predicted"])["unbalance_gmm"]
+        ok = w["within_tolerance"]
+        rows.append([_e(w["name"]), _e(w["method"]), _vec(w["target_gmm"]), _vec(achieved),
+                     f"±{_n(w['tolerance_gmm'], 1)}", _vec(w["residual_gmm"], 2), _n(w["residual_bf_points"], 3),
+                     f'<span class="{"ok" if ok else "bad"}">{"yes" if ok else "NO"}</span>'])
+    return _table(["web", "method", "target x, y (g·mm)", "achieved x, y, exact solid (g·mm)",
+                   "tolerance per component (g·mm)", "residual x, y (g·mm)", "residual (BF points)",
+                   "within tolerance"], rows, left=2)
+
+
+def _feature_rows(w, entry: dict) -> list[list[str]]:
+    tables = entry["existing_features"] + entry["planned_features"]
+    rows = []
+    for (label, f), t in zip(feature_numbers(w, w.all_features), tables):
+        eff = t["effect"]
+        status = "on the web" if label.startswith("E") else "to cut"
+        if isinstance(f, Pocket):
+            where = f"r {_n(f.r_inner, 2)}–{_n(f.r_outer, 2)} mm, {_n(f.angle_start, 1)}° to " \
+                    f"{_n(f.angle_start + f.span_deg, 1)}°, corners r {_n(f.corner_radius, 2)}"
+            size, depth, kind = "—", f"{_n(f.depth, 2)} (flat)", "pocket"
+        else:
+            where = f"x {_n(f.x, 2)}, y {_n(f.y, 2)} mm"
+            size = f"{_n(f.diameter, 2)}"
+            if isinstance(f, Plug):
+                kind = f"plug, {_e(f.material or 'custom')}"
+                depth = f"{_n(f.length, 2)} (plug length)"
+            else:
+                kind = "hole"
+                depth = "through" if f.through else f"{_n(f.depth, 2)} + {_n(f.point_length, 2)} point"
+        rows.append([label, status, kind, _e(f.face), where, size, depth, _n(eff["mass_g"], 2),
+                     _vec(eff["unbalance_gmm"])])
+    return rows
+
+
+def _web_block(w, entry: dict) -> str:
+    before = w.existing
+    pics = [
+        web_svg(w, features=before, com_before=entry["before"]["com_mm"], com_after=None,
+                title=f"web {w.spec.name} before"),
+        web_svg(w, features=w.all_features, com_before=entry["before"]["com_mm"],
+                com_after=entry["predicted"]["com_mm"], title=f"web {w.spec.name} after"),
+    ]
+    caps = [f"Before: {_n(entry['before']['mass_g'], 1)} g, centre of mass "
+            f"{_vec(entry['before']['com_mm'][:2], 2)} mm, unbalance {_vec(entry['before']['unbalance_gmm'])} g·mm.",
+            f"After: {_n(entry['predicted']['mass_g'], 1)} g, centre of mass "
+            f"{_vec(entry['predicted']['com_mm'][:2], 2)} mm, unbalance "
+            f"{_vec(entry['predicted']['unbalance_gmm'])} g·mm."]
+    figs = "".join(f"<figure>{p}<figcaption>{c}</figcaption></figure>" for p, c in zip(pics, caps))
+    rows = _feature_rows(w, entry)
+    table = _table(["no", "status", "kind", "face", "where (web frame)", "diameter (mm)", "depth (mm)",
+                    "mass change (g)", "unbalance change x, y (g·mm)"], rows, left=5) if rows else \
+        "<p>No features: the web already meets its target.</p>"
+    considered = "".join(f"<li>{_e(c)}</li>" for c in entry.get("considered", []))
+    return "".join([
+        f'<div class="web-block"><h3>Web {_e(w.spec.name)}: {_n(entry["thickness_mm"], 2)} mm thick, '
+        f'{_e(entry["material"])} ({_n(entry["density_g_cm3"], 3)} g/cm³), crankpin bore '
+        f'{_n(entry["pin_bore_mm"], 2)} mm</h3>',
+        '<p class="legend"><span><i class="sw" style="border-color:#b8322a;background:#fff"></i>material taken off'
+        '</span><span><i class="sw" style="border-color:#1f5f8b;background:#1f5f8b"></i>heavy-metal plug</span>'
+        '<span>dashed outline: cut from the inner face</span>'
+        '<span style="color:#d9822b">⊕ COM before</span><span style="color:#2a7d4f">⊕ COM after</span></p>',
+        f'<div class="pair">{figs}</div>',
+        f"<p><b>Why this plan:</b> {_e(entry['why'])}. <b>What limits it:</b> {_e(entry['binding'])}.</p>",
+        # the planner's `why` usually lists what it tried; show the list only when it adds to it
+        f"<ul class=\"note\">{considered}</ul>" if considered and not all(
+            c in entry["why"] for c in entry.get("considered", [])) else "",
+        table, "</div>"])
+
+
+def _verification(doc: dict) -> str:
+    parts = []
+    for w in doc["webs"]:
+        if "exact" not in w:
+            parts.append(f"<p>Web {_e(w['name'])}: not verified on a solid in this run.</p>")
+            continue
+        p, x, m = w["predicted"], w["exact"], w["mesh"]
+        bound = w["agreement"]["mesh_bound"]
+        rows = [["mass (g)", _n(p["mass_g"], 3), _n(x["mass_g"], 3), _n(m["mass_g"], 3), f"±{_n(bound['mass_g'], 3)}"],
+                ["centre of mass x, y, z (mm)", _vec(p["com_mm"], 4), _vec(x["com_mm"], 4), _vec(m["com_mm"], 4), ""],
+                ["unbalance x, y (g·mm)", _vec(p["unbalance_gmm"], 2), _vec(x["unbalance_gmm"], 2),
+                 _vec(m["unbalance_gmm"], 2), f"±{_n(bound['unbalance_gmm'], 2)}"],
+                ["I<sub>z</sub> about the crank axis (g·mm²)", _n(p["inertia_z_gmm2"], 0), _n(x["inertia_z_gmm2"], 0),
+                 _n(m["inertia_z_gmm2"], 0), f"±{_n(bound['inertia_z_gmm2'], 0)}"]]
+        pe = w["agreement"]["predicted_vs_exact"]
+        parts.append(f"<h3>Web {_e(w['name'])}</h3>" + _table(
+            ["", "predicted (closed forms)", "exact B-rep (STEP solid)", "mesh (STL)", "stated mesh bound"], rows)
+            + f'<p class="note">Prediction vs exact solid: unbalance apart by {pe["unbalance_gmm"]:.3g} g·mm, mass by '
+              f'{pe["mass_rel"]:.2g} relative. The mesh is checked only against its stated bound (STL chord '
+              f'{_n(bound["tolerance_mm"], 3)} mm); it always reads a little light.</p>')
+    return "".join(parts)
+
+
+def _safety(doc: dict) -> str:
+    s = doc["safety"]
+    out = []
+    if s["plugs"]:
+        rows = [[_e(p["web"]), str(p["feature"]), _n(p["diameter_mm"], 2), _n(p["length_mm"], 2), _n(p["mass_g"], 2),
+                 _n(p["radius_mm"], 2), _n(p["load_N_max_rpm"], 0), _n(p["load_N_overspeed"], 0)] for p in s["plugs"]]
+        out.append(_table(["web", "feature", "diameter (mm)", "length (mm)", "plug mass (g)", "radius (mm)",
+                           f"load at {_n(s['max_rpm'], 0)} rpm (N)", f"load at {_n(s['overspeed_rpm'], 0)} rpm (N)"],
+                          rows, left=2))
+        out.append('<p class="note">Centrifugal pull of each plug on its bore, F = m ω² r. The retention (press '
+                   'fit, staking, welding or a cross pin) must be rated for the overspeed figure, with margin.</p>')
+    else:
+        out.append("<p>No heavy-metal plugs in this plan.</p>")
+    rows = [[_e(d["web"]), _n(d["outer_radius_mm"], 2), _n(d["bore_radius_mm"], 2),
+             _n(d["hoop_stress_MPa_max_rpm"], 1), _n(d["hoop_stress_MPa_overspeed"], 1)] for d in s["discs"]]
+    out.append("<h3>Rotating-disc hoop-stress screen</h3>")
+    out.append(_table(["web", "outer radius (mm)", "central bore radius (mm)",
+                       f"hoop stress at {_n(s['max_rpm'], 0)} rpm (MPa)",
+                       f"at {_n(s['overspeed_rpm'], 0)} rpm (MPa)"], rows))
+    out.append(f'<p class="note"><b>Caveat:</b> {_e(s["disc_method"])}. Use it to spot a design that needs a '
+               "proper stress check, never to clear one.</p>")
+    return "".join(out)
+
+
+def _study(study: dict | None) -> str:
+    if study is None:
+        return "<p>No balance study in this run.</p>"
+    from .plots import study_svg
+
+    svg = study_svg(study).decode("utf-8")
+    # keep the <svg> element only: an XML declaration or DOCTYPE is not allowed inside HTML
+    svg = svg[svg.index("<svg"):]
+    svg = re.sub(r'<svg([^>]*?) width="[^"]*" height="[^"]*"', r"<svg\1", svg, count=1)
+    bal = study["inputs"].get("balancer")
+    note = ("the job has a balancer shaft: solid lines with it, dashed without" if bal else
+            "the job has no balancer shaft")
+    return (f'<div class="study">{svg}</div><p class="note">Left: the residual shaking force over one revolution '
+            f"at max speed, webs at target, in the crank frame (0° = +Y, towards the cylinder head when it is "
+            f"upright). Right: the peak force against the balance factor; {note}. Smallest peak at balance factor "
+            f"{_n(study['best_balance_factor'], 2)}.</p>")
+
+
+def report_html(*, job, doc: dict, webs, study: dict | None) -> bytes:
+    """The report as UTF-8 bytes.
+
+    job : geomgen.job.Job;  doc : the plan.json dict;  webs : pipeline.WebWork list;
+    study : the study.study() result (its figure), or None.
+    """
+    title = f"Crank web correction: {doc['job']}"
+    blocks = "".join(_web_block(w, entry) for w, entry in zip(webs, doc["webs"]))
+    body = [
+        f"<h1>{_e(title)}</h1>",
+        f'<p class="sub">geomgen {_e(doc.get("geomgen_version", ""))}, command “{_e(doc["command"])}”. '
+        "Lengths in mm, masses in g, unbalance in g·mm. Web frame: crank axis at the centre, crankpin on +Y, "
+        "counterweight on −Y, seen from the outer face; angles from +Y, counter-clockwise.</p>",
+        _cautions(doc),
+        "<h2>Result at a glance</h2>", _summary(doc),
+        "<h2>Engine and weighed masses</h2>", _engine(doc),
+        "<h2>Balance of each web</h2>", _balance_table(doc),
+        "<h2>Shaking force and balance-factor sweep</h2>", _study(study),
+        "<h2>The webs before and after</h2>", blocks,
+        "<h2>Verification: prediction, exact solid and mesh</h2>", _verification(doc),
+        "<h2>Loads at speed</h2>", _safety(doc),
+        f'<p class="note">Files of this plan: plan.json, operations.csv (the machinist\'s sheet, '
+        f"{_e(job.output.sheet_units)}), drawing.dxf, the STEP and STL of each web. "
+        "These figures are design aids, not a release for service.</p>",
+    ]
+    page = ('<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
+            f'<meta name="viewport" content="width=device-width, initial-scale=1"><title>{_e(title)}</title>'
+            f"<style>{_CSS}</style></head><body>\n" + "\n".join(body) + "\n</body></html>\n")
+    return page.encode("utf-8")

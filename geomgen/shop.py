@@ -1,0 +1,30 @@
+"""The outputs a person reads: operations.csv, drawing.dxf and report.html.
+
+The pipeline calls `render` after the solids are verified; each file is made
+by its own module from the job, the plan.json document and the planned webs.
+"""
+
+from __future__ import annotations
+
+
+def render(*, job, doc: dict, webs, study: dict | None = None) -> dict[str, bytes]:
+    """{file name: bytes} for operations.csv, drawing.dxf and report.html.
+
+    job : geomgen.job.Job;  doc : the plan.json dict (pipeline.plan_document);
+    webs : list of pipeline.WebWork;  study : the full study.study() result
+    (its figure goes in the report); when it is not given it is worked out
+    again from the job (pure numpy, a few milliseconds).
+    """
+    from .drawing import drawing_dxf
+    from .report import report_html
+    from .sheet import operations_csv
+
+    if study is None:
+        from .study import study_of
+
+        study = study_of(job)
+    return {
+        "operations.csv": operations_csv(job=job, doc=doc, webs=webs),
+        "drawing.dxf": drawing_dxf(job=job, doc=doc, webs=webs),
+        "report.html": report_html(job=job, doc=doc, webs=webs, study=study),
+    }
