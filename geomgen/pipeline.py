@@ -212,7 +212,7 @@ def _feature_rows(features, section):
 
 def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], study_result: dict | None) -> dict:
     e = job.engine
-    exact = [MassProps(**v["exact_raw"]) for v in verified] if verified else [w.plan.predicted for w in webs]
+    exact = [v["exact_massprops"] for v in verified] if verified else [w.plan.predicted for w in webs]
     unit_bf = e.m_reciprocating * e.crank_radius / 100.0   # g*mm per balance-factor point
     doc_webs = []
     for w, v in zip(webs, verified or [None] * len(webs)):
@@ -285,27 +285,43 @@ def plan_json_bytes(doc: dict) -> bytes:
 
 # ------------------------------------------------------------------ solids
 def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
-    """Solids, STEP/STL, exact and mesh properties, compared with the prediction (exit 4 if apart)."""
-    from .export import export_web, write_crank_step
+    """Solids, STEP/STL, exact and mesh properties, compared with the prediction (exit 4 if apart).
+
+    A web with the same section and features as one already built (the usual pair) reuses that
+    solid, its verification and its mesh bytes; its STEP is written under its own name.
+    """
+    import dataclasses
+    import shutil
+
+    from .export import export_web, write_crank_step, write_step
     from .solid import build_web, crank_assembly
     from .verify import verify_web
 
-    out, solids = [], []
+    out, solids, built = [], [], []
     for w in webs:
-        # the solid's own wall check, independent of the planner, holds every web to the job's walls
-        solid = build_web(w.section, w.all_features, name=w.spec.name, min_wall=job.correction.min_wall,
-                          pin_wall=job.correction.pin_wall)
-        paths = export_web(solid, folder, tolerance=job.output.stl_tolerance,
-                           angular_tolerance=job.output.stl_angular_tolerance)
-        v = verify_web(solid, w.plan.predicted, paths, tolerance=job.output.stl_tolerance)
-        from .verify import exact_massprops
-
-        ex = exact_massprops(solid)
-        v["exact_raw"] = {"mass": ex.mass, "first_moment": ex.first_moment, "second_moment": ex.second_moment,
-                          "volume": ex.volume}
-        v["files"] = sorted(p.name for p in paths.values())
+        twin = next((i for i, b in enumerate(built) if b.section == w.section
+                     and b.all_features == w.all_features), None)
+        if twin is not None:
+            solid = dataclasses.replace(solids[twin], name=w.spec.name)
+            stem_old, stem = f"web-{webs[twin].spec.name}", f"web-{w.spec.name}"
+            write_step([(n, s) for n, s, _ in solid.solids()], folder / f"{stem}.step")
+            files = [f"{stem}.step"]
+            for name in out[twin]["files"]:
+                if name.endswith(".stl"):
+                    shutil.copyfile(folder / name, folder / name.replace(stem_old, stem, 1))
+                    files.append(name.replace(stem_old, stem, 1))
+            v = dict(out[twin], files=sorted(files))
+        else:
+            # the solid's own wall check, independent of the planner, holds every web to the job's walls
+            solid = build_web(w.section, w.all_features, name=w.spec.name, min_wall=job.correction.min_wall,
+                              pin_wall=job.correction.pin_wall)
+            paths = export_web(solid, folder, tolerance=job.output.stl_tolerance,
+                               angular_tolerance=job.output.stl_angular_tolerance)
+            v = verify_web(solid, w.plan.predicted, paths, tolerance=job.output.stl_tolerance)
+            v["files"] = sorted(p.name for p in paths.values())
         out.append(v)
         solids.append(solid)
+        built.append(w)
     if job.output.crank_step and len(solids) == 2:
         write_crank_step(crank_assembly(solids[0], solids[1], gap_mm=job.output.crank_gap), folder / "crank.step")
     return out
@@ -313,7 +329,7 @@ def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
 
 def _clean_for_json(verified):
     for v in verified:
-        v.pop("exact_raw", None)
+        v.pop("exact_massprops", None)
     return verified
 
 
@@ -335,8 +351,6 @@ def _finish(args, job, command, webs, *, with_study=True, with_shop=True):
         verified = build_and_verify(job, webs, stage)
         doc = plan_document(job, command, webs, verified, study_result)
         _clean_for_json(verified)
-        for w in doc["webs"]:
-            w.get("agreement", {}).pop("exact_raw", None)
         files = {"plan.json": plan_json_bytes(_jsonable(doc))}
         if study_result is not None:
             files.update(study_mod.render(study_result))

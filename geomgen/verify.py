@@ -258,4 +258,4 @@ def verify_web(web, predicted: MassProps, paths: dict, *, tolerance: float) -> d
     mesh = mesh_web_massprops(web, paths)
     cmp = compare(predicted, exact, mesh, bound=mesh_bound(web, tolerance=tolerance), name=web.name)
     return {"predicted": predicted.summary(), "exact": exact.summary(), "mesh": mesh.summary(),
-            "comparison": cmp}
+            "comparison": cmp, "exact_massprops": exact}
