@@ -148,19 +148,30 @@ def polar(r: float, a_deg: float) -> tuple[float, float]:
 
 
 def kidney_polygon(f: dict):
-    """An annular sector from the contract's keys, its convex corners rounded by a morphological
-    opening of corner_radius (shapely buffer -rc then +rc): the kidney rebuilt without geomgen."""
+    """The kidney rebuilt from the contract's keys without geomgen: the union of every disc of
+    corner_radius that fits the annular sector (its morphological opening), i.e. the set of points
+    at least rc inside the sector grown by rc.  With rc = half the width that set is the mid arc
+    (a slot with round ends)."""
     a0, a1 = f["angle_start"], f["angle_end"]
-    span = (a1 - a0) % 360.0 or 360.0
-    n = max(64, int(span * 8))
-    angles = np.linspace(a0, a0 + span, n)
-    outer = [polar(f["r_outer"], a) for a in angles]
-    inner = [polar(f["r_inner"], a) for a in angles[::-1]] if f["r_inner"] > 0 else [(0.0, 0.0)]
-    sector = shapely.Polygon(outer + inner)
+    ri, ro = f["r_inner"], f["r_outer"]
     rc = f.get("corner_radius", 0.0)
-    if rc > 0:
-        sector = sector.buffer(-rc, quad_segs=QUAD).buffer(rc, quad_segs=QUAD)
-    return sector
+    span = (a1 - a0) % 360.0 or 360.0
+    angles = np.linspace(a0, a0 + span, max(64, int(span * 8)))
+
+    def sector(r_lo, r_hi):
+        outer = [polar(r_hi, a) for a in angles]
+        inner = [polar(r_lo, a) for a in angles[::-1]] if r_lo > 0 else [(0.0, 0.0)]
+        return shapely.Polygon(outer + inner)
+
+    if rc <= 0:
+        return sector(ri, ro)
+    if ro - ri - 2 * rc < 1e-9:
+        core = shapely.LineString([polar(0.5 * (ri + ro), a) for a in angles])
+    else:
+        core = sector(ri + rc, ro - rc)
+    sides = shapely.union_all([shapely.LineString([polar(ri, a), polar(ro, a)]).buffer(rc, quad_segs=QUAD)
+                               for a in (a0, a0 + span)])
+    return core.difference(sides).buffer(rc, quad_segs=QUAD)
 
 
 def footprint(f: dict):

@@ -75,7 +75,7 @@ CASES = {
     # a circle with two flats and a drawn pin bore, auto: the planner picks
     "flats-auto": ({"correction.kind": "auto", "correction.plug_material": 17.6}, _flats, None, None),
     # lightening on a disc: 20 g more off each web, target held
-    "disc-lighten": ({"engine.rotating": {"rod_big_end": 100.0, "crankpin": 140.0},
+    "disc-lighten": ({"engine.rotating": {"rod_big_end": 60.0, "crankpin": 40.0},
                       "correction.lighten": 20.0}, None, "holes", None),
 }
 
@@ -343,9 +343,9 @@ def test_lighten_40_on_the_demo_job_is_feasible():
                    "plus a drill point, more than a small lighten asks, so lighten = 5 g is always infeasible")
 def test_small_lighten_is_feasible():
     section = _demo_section()
-    # need 1720 g*mm (rod_big_end 100 g): lighten = 20 plans (the CAD case above) but 5 g does not,
+    # need 1720 g*mm (rotating 100 g): lighten = 20 plans (the CAD case above) but 5 g does not,
     # although moving the same correction nearer the axis takes more mass for the same unbalance
-    target = (0.0, -(240.0 + 0.55 * 330.0) * 16.0)
+    target = (0.0, -(100.0 + 0.55 * 330.0) * 16.0)
     plan = plan_web(name="a", section=section, existing=(), target=target, tolerance=26.4, method="holes",
                     limits=LIMITS, lighten=5.0)
     assert plan.features
