@@ -266,5 +266,15 @@ def drawing_dxf(*, job, doc: dict, webs) -> bytes:
         _text(msp, ("CAUTION: " if k == 0 else "") + line, (-webs[0].section.rim_radius_max, bottom - k * ROW_H),
               layer="NOTES")
     stream = io.StringIO()
-    dxf.write(stream)
+    # ezdxf stamps the time and random GUIDs on every save; its fixed metadata keeps the file
+    # the same for the same job (the option is process-wide: put it back)
+    meta = dxf.ezdxf_metadata()
+    if "CREATED_BY_EZDXF" in meta:
+        meta["CREATED_BY_EZDXF"] = f"{ezdxf.__version__} for geomgen"
+    keep = ezdxf.options.write_fixed_meta_data_for_testing
+    ezdxf.options.write_fixed_meta_data_for_testing = True
+    try:
+        dxf.write(stream)
+    finally:
+        ezdxf.options.write_fixed_meta_data_for_testing = keep
     return stream.getvalue().encode("utf-8")

@@ -1,0 +1,71 @@
+"""One real `geomgen plan` run shared by the shop-output tests (about 10 s, done once).
+
+The job is an invented demo: the design.md example engine and webs, each web
+already carrying a blind hole drilled from the inner face off the centre line on the pin side
+(so the sheet's mirrored x can be seen) and a kidney pocket on the outer face;
+the planner adds heavy-metal plugs (kind = "auto", blind holes only).
+"""
+
+from __future__ import annotations
+
+import argparse
+import functools
+import json
+import tempfile
+from pathlib import Path
+
+JOB = """\
+name = "shop test (invented demo)"
+[engine]
+stroke = 64.0
+rod_length = 110.0
+max_rpm = 11000
+balance_factor = 0.55
+[engine.reciprocating]
+piston = 250.0
+rod_small_end = 80.0
+[engine.rotating]
+rod_big_end = 200.0
+crankpin = 140.0
+[web]
+diameter = 130.0
+thickness = 18.0
+material = "steel"
+pin_bore = 28.0
+[[web.features]]
+kind = "hole"
+x = 40.0
+y = 10.0
+diameter = 10.0
+depth = 6.0
+face = "inner"
+[[web.features]]
+kind = "pocket"
+r_inner = 50.0
+r_outer = 60.0
+angle_start = 165.0
+angle_end = 195.0
+depth = 5.0
+corner_radius = 3.0
+[correction]
+kind = "auto"
+through = false
+max_depth = 12.0
+"""
+
+
+@functools.lru_cache(maxsize=1)
+def plan_run() -> dict:
+    """{"out": Path, "job": Job, "webs": [WebWork], "doc": plan.json dict, "study": study result}."""
+    from geomgen import job as jobmod
+    from geomgen.pipeline import plan_webs, run_plan
+    from geomgen.study import study_of
+
+    folder = Path(tempfile.mkdtemp(prefix="geomgen-shop-"))
+    job_path = folder / "job.toml"
+    job_path.write_text(JOB)
+    out = folder / "out"
+    run_plan(argparse.Namespace(job=str(job_path), out=str(out), force=False))
+    job = jobmod.load(job_path)
+    return {"out": out, "job": job, "webs": plan_webs(job), "doc": json.loads((out / "plan.json").read_text()),
+            "study": study_of(job)}
