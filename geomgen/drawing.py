@@ -24,8 +24,8 @@ GAP_MM = 40.0         # mm between one web's drawing (or table) and the next
 DIM_STYLE = "GEOMGEN"
 
 #: table columns: (heading, width mm)
-_TABLE = (("no", 8), ("kind", 22), ("face", 12), ("x mm", 16), ("y mm", 16), ("dia mm", 15), ("drill", 20),
-          ("depth mm", 24), ("mass g", 16), ("dU x, y g*mm", 30))
+_TABLE = (("no", 8), ("kind", 22), ("face", 12), ("x mm", 16), ("y mm", 16), ("dia mm", 15), ("drill", 32),
+          ("depth mm", 28), ("mass g", 16), ("dU x, y g*mm", 30))
 TABLE_WIDTH = sum(w for _, w in _TABLE)
 
 _LAYERS = {"OUTLINE": 7, "BORES": 8, "FEATURES": 1, "COM": 3, "AXES": 5, "TABLE": 7, "DIMS": 4}

@@ -37,6 +37,7 @@ table { border-collapse: collapse; margin: 6px 0 12px; font-size: 13.5px; }
 th, td { border: 1px solid var(--line); padding: 3px 8px; text-align: right; vertical-align: top; }
 th { background: var(--soft); font-weight: 600; }
 td.l, th.l { text-align: left; }
+td:not(.l) { white-space: nowrap; }
 .pair { display: flex; flex-wrap: wrap; gap: 18px; }
 .pair figure { margin: 0; flex: 1 1 420px; }
 figcaption { font-size: 13px; color: var(--muted); }
@@ -226,7 +227,7 @@ def _feature_rows(w, entry: dict) -> list[list[str]]:
             where = f"x {_n(f.x, 2)}, y {_n(f.y, 2)} mm"
             size = f"{_n(f.diameter, 2)}"
             if isinstance(f, Plug):
-                kind = f"plug, {_e(f.material or 'custom')}"
+                kind = f"plug ({_e(f.material or 'custom')})"
                 depth = f"{_n(f.length, 2)} (plug length)"
             else:
                 kind = "hole"
@@ -252,8 +253,10 @@ def _web_block(w, entry: dict) -> str:
     figs = "".join(f"<figure>{p}<figcaption>{c}</figcaption></figure>" for p, c in zip(pics, caps))
     rows = _feature_rows(w, entry)
     table = _table(["no", "status", "kind", "face", "where (web frame)", "diameter (mm)", "depth (mm)",
-                    "mass change (g)", "unbalance change x, y (g·mm)"], rows, left=5) if rows else \
-        "<p>No features: the web already meets its target.</p>"
+                    "mass change (g)", "unbalance change x, y (g·mm)"], rows, left=5) + \
+        ('<p class="note">Mass change of a plug: the plug less the web material its bore took out '
+         "(the plug's own mass is in the loads table).</p>" if any(isinstance(f, Plug) for f in w.all_features)
+         else "") if rows else "<p>No features: the web already meets its target.</p>"
     considered = "".join(f"<li>{_e(c)}</li>" for c in entry.get("considered", []))
     return "".join([
         f'<div class="web-block"><h3>Web {_e(w.spec.name)}: {_n(entry["thickness_mm"], 2)} mm thick, '
@@ -279,12 +282,14 @@ def _verification(doc: dict) -> str:
             continue
         p, x, m = w["predicted"], w["exact"], w["mesh"]
         bound = w["agreement"]["mesh_bound"]
-        rows = [["mass (g)", _n(p["mass_g"], 3), _n(x["mass_g"], 3), _n(m["mass_g"], 3), f"±{_n(bound['mass_g'], 3)}"],
+        # plan.json keeps 6 significant figures: print no more than that, or equal numbers look apart
+        rows = [["mass (g)", _n(p["mass_g"], 2), _n(x["mass_g"], 2), _n(m["mass_g"], 2), f"±{_n(bound['mass_g'], 2)}"],
                 ["centre of mass x, y, z (mm)", _vec(p["com_mm"], 4), _vec(x["com_mm"], 4), _vec(m["com_mm"], 4), ""],
                 ["unbalance x, y (g·mm)", _vec(p["unbalance_gmm"], 2), _vec(x["unbalance_gmm"], 2),
                  _vec(m["unbalance_gmm"], 2), f"±{_n(bound['unbalance_gmm'], 2)}"],
-                ["I<sub>z</sub> about the crank axis (g·mm²)", _n(p["inertia_z_gmm2"], 0), _n(x["inertia_z_gmm2"], 0),
-                 _n(m["inertia_z_gmm2"], 0), f"±{_n(bound['inertia_z_gmm2'], 0)}"]]
+                ["I<sub>z</sub> about the crank axis (kg·mm²)", _n(p["inertia_z_gmm2"] / 1e3, 2),
+                 _n(x["inertia_z_gmm2"] / 1e3, 2), _n(m["inertia_z_gmm2"] / 1e3, 2),
+                 f"±{_n(bound['inertia_z_gmm2'] / 1e3, 2)}"]]
         pe = w["agreement"]["predicted_vs_exact"]
         parts.append(f"<h3>Web {_e(w['name'])}</h3>" + _table(
             ["", "predicted (closed forms)", "exact B-rep (STEP solid)", "mesh (STL)", "stated mesh bound"], rows)

@@ -120,8 +120,8 @@ def test_verification_and_loads(run):
     text, doc = run["text"], run["doc"]
     assert "exact B-rep" in text and "mesh (STL)" in text and "stated mesh bound" in text
     for web in doc["webs"]:
-        assert _shows(text, web["exact"]["mass_g"], 3)
-        assert _shows(text, web["mesh"]["inertia_z_gmm2"], 0)
+        assert _shows(text, web["exact"]["mass_g"], 2)
+        assert _shows(text, web["mesh"]["inertia_z_gmm2"] / 1000.0, 2)          # printed in kg*mm^2
         assert _shows(text, web["agreement"]["mesh_bound"]["unbalance_gmm"], 2)
     assert doc["safety"]["plugs"]
     for plug in doc["safety"]["plugs"]:
