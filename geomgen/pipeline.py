@@ -210,7 +210,24 @@ def _feature_rows(features, section):
     return rows
 
 
-def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], study_result: dict | None) -> dict:
+def trim_figures(job, webs: list[WebWork], exact: list[MassProps], trim: dict) -> dict:
+    """What the trim takes off, in the crank frame, against the measured heavy spot."""
+    gap, t_a = job.output.crank_gap, webs[0].section.thickness
+    before = sum((in_crank_frame(w.plan.before, i, thickness_a=t_a, gap=gap) for i, w in enumerate(webs)),
+                 MassProps.zero())
+    after = sum((in_crank_frame(p, i, thickness_a=t_a, gap=gap) for i, p in enumerate(exact)), MassProps.zero())
+    a = math.radians(trim["heavy_spot_deg"])
+    heavy = trim["measured_gmm"] * np.array([-math.sin(a), math.cos(a)])
+    change = after.unbalance - before.unbalance
+    left = heavy + change
+    return {"measured_gmm": _num(trim["measured_gmm"]), "heavy_spot_deg": _num(trim["heavy_spot_deg"]),
+            "heavy_spot_gmm": _vec(heavy), "on_webs": trim["web"], "from": trim["from"],
+            "change_gmm": _vec(change), "left_gmm": _vec(left),
+            "left_share_of_measured": _num(float(np.hypot(*left)) / trim["measured_gmm"])}
+
+
+def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], study_result: dict | None,
+                  trim: dict | None = None) -> dict:
     e = job.engine
     exact = [v["exact_massprops"] for v in verified] if verified else [w.plan.predicted for w in webs]
     unit_bf = e.m_reciprocating * e.crank_radius / 100.0   # g*mm per balance-factor point
@@ -273,6 +290,8 @@ def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], 
         "safety": safety_figures(job, webs),
         "cautions": list(CAUTIONS),
     }
+    if trim is not None:
+        doc["trim"] = trim_figures(job, webs, exact, trim)
     if study_result is not None:
         doc["study"] = {k: study_result[k] for k in ("peak_N", "best_balance_factor", "best_balance_factor_no_balancer",
                                                      "bob_weight_g") if k in study_result}
@@ -343,13 +362,13 @@ def _shop_files(job, doc, webs, study_result) -> dict[str, bytes]:
     return shop.render(job=job, doc=doc, webs=webs, study=study_result)
 
 
-def _finish(args, job, command, webs, *, with_study=True, with_shop=True):
+def _finish(args, job, command, webs, *, with_study=True, with_shop=True, trim=None):
     from . import study as study_mod
 
     study_result = study_of(job) if with_study else None
     with staged(args.out, force=args.force) as stage:
         verified = build_and_verify(job, webs, stage)
-        doc = plan_document(job, command, webs, verified, study_result)
+        doc = plan_document(job, command, webs, verified, study_result, trim)
         _clean_for_json(verified)
         files = {"plan.json": plan_json_bytes(_jsonable(doc))}
         if study_result is not None:
@@ -380,7 +399,14 @@ def _jsonable(obj):
 
 def summary_lines(doc: dict) -> list[str]:
     crank = doc["crank"]
-    lines = [f"{doc['command']}: {doc['job']}",
+    lines = [f"{doc['command']}: {doc['job']}"]
+    if "trim" in doc:
+        t = doc["trim"]
+        lines.append(f"trim: measured {t['measured_gmm']:.1f} g*mm at {t['heavy_spot_deg']:g} deg from the pin (crank "
+                     f"frame), taken off {t['on_webs']}; left after the trim {math.hypot(*t['left_gmm']):.2f} g*mm "
+                     f"({100 * t['left_share_of_measured']:.2f} % of the measured)")
+        lines.append("  (the balance factor below is against the design target; the trim answers the measurement)")
+    lines += [
              f"balance factor asked {crank['balance_factor_asked']:.3f}, achieved {crank['balance_factor_achieved']:.4f} "
              f"(residual {crank['residual_bf_points']:.3f} points, allowed {doc['correction']['tolerance_bf_points']:g})",
              f"crank residual {math.hypot(*crank['residual_gmm']):.1f} g*mm; ISO 21940-11 G{crank['iso_21940_11']['grade_mm_s']:g} "
@@ -461,9 +487,12 @@ def previous_features(job, from_dir: Path) -> dict:
     for web in job.webs:
         if web.name not in webs:
             raise BadInput(f"--from {path}: no web named {web.name!r} (it has {', '.join(map(str, webs))})")
-        out[web.name] = tuple(feature_from_table(t, where=f"{path.name} web {web.name} feature {i + 1}",
+        rows = webs[web.name].get("features", [])
+        # plan.json adds each feature's computed effect: figures, not part of the feature
+        out[web.name] = tuple(feature_from_table({k: v for k, v in t.items() if k != "effect"},
+                                                 where=f"{path.name} web {web.name} feature {i + 1}",
                                                  thickness=web.thickness)
-                              for i, t in enumerate(webs[web.name].get("features", [])))
+                              for i, t in enumerate(rows))
     return out
 
 
@@ -510,4 +539,6 @@ def run_trim(args) -> int:
         # 1 % of the measured residual per web keeps the pair within 2 % of it
         tolerances[web.name] = max(0.01 * unbalance * share, 0.05)
     webs = plan_webs(job, existing=existing, targets=targets, tolerances=tolerances, lighten=0.0)
-    return _finish(args, job, "trim", webs)
+    trim = {"measured_gmm": unbalance, "heavy_spot_deg": angle, "from": str(args.from_dir),
+            "web": f"web {args.web}" if args.web else "both webs by their shares"}
+    return _finish(args, job, "trim", webs, trim=trim)

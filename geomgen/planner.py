@@ -313,9 +313,10 @@ def _solve_depth(effect, need_along, u_axis, lo, hi, step):
     exact = lo + t * (hi - lo)
     if exact < lo - 1e-9 or exact > hi + 1e-9:
         return None
+    lo_grid, hi_grid = math.ceil(lo / step - 1e-9) * step, math.floor(hi / step + 1e-9) * step
     best = None
     for cand in (math.floor(exact / step) * step, math.ceil(exact / step) * step):
-        cand = round(min(max(cand, lo), hi), 6)
+        cand = round(min(max(cand, lo_grid), hi_grid), 6)
         err = abs(float(np.dot(effect(cand).unbalance, u_axis)) - need_along)
         if best is None or err < best[1]:
             best = (cand, err)
@@ -521,15 +522,18 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
                        f"already within tolerance: off by {need:.1f} g*mm, allowed {tolerance:.1f} g*mm", "none")
     clearance = Clearance(section=section, existing=existing, limits=limits, keep_out=keep_out)
     if lighten > 0:
-        if method not in ("holes", "auto"):
-            raise BadInput(f"correction.lighten: lightening is planned with holes; set correction.kind to "
-                           f"'holes' or 'auto', not {method!r}")
-        alone = plan_web(name=name, section=section, existing=existing, target=target, tolerance=tolerance,
-                         method="holes", limits=limits, keep_out=keep_out, _hint=_hint)
-        alone_mass = alone.predicted.mass - alone.before.mass
-        return _plan_lighten(name=name, section=section, clearance=clearance, before=before, need_vec=need_vec,
-                             target=target, tolerance=tolerance, limits=limits, lighten=lighten,
-                             want_mass=alone_mass - lighten)
+        # first the lightening, balanced on its own; then the correction around it
+        extra = _lightening_holes(name=name, section=section, clearance=clearance, limits=limits, lighten=lighten)
+        rest = plan_web(name=name, section=section, existing=tuple(existing) + tuple(extra), target=target,
+                        tolerance=tolerance, method=method, limits=limits, plug_material=plug_material,
+                        keep_out=keep_out, _hint=_hint)
+        taken = -_total(extra, thickness=thickness, web_density=web_density).mass
+        feats = _machining_order(list(extra) + list(rest.features))
+        why = (f"lightening: {len(extra)} blind holes in balanced sets of four take {taken:.2f} g off "
+               f"({lighten:g} g asked) with no change to the unbalance; then {rest.why}")
+        return WebPlan(name, rest.method, tuple(feats), before, rest.predicted, tuple(target), tolerance, why,
+                       _binding(feats, section=section, region_parts=None, limits=limits, thickness=thickness),
+                       rest.considered)
     remove_axis = _direction_angle(-need_vec)
     add_axis = _direction_angle(need_vec)
     blind_max = thickness - limits.min_wall
@@ -615,77 +619,53 @@ def _raise_infeasible(name, need, reaches, limits, methods, section, existing, t
 
 
 # ------------------------------------------------------------------ lightening
-def _plan_lighten(*, name, section, clearance, before, need_vec, target, tolerance, limits, lighten, want_mass):
-    """Take `lighten` g more off the web than the correction alone, holding the target.
+def _lightening_holes(*, name, section, clearance, limits, lighten):
+    """Holes that take `lighten` g off the web and leave its unbalance as it is.
 
-    want_mass : the mass change wanted, g (the correction alone's, less `lighten`).
-    Two rows of holes, each on its own half of the web: one opposite the
-    needed change and one on the other side; their depths are solved
-    together from the two linear conditions on mass and unbalance.
+    Sets of four equal blind holes at one radius, at angles a, -a, 180 - a and
+    180 + a from +Y: symmetric about both axes, so their first moment is zero.
+    The fewest holes win, then the largest radius (the most inertia shed); the
+    common depth is solved exactly for the mass, then rounded to depth_step.
     """
     thickness, rho = section.thickness, section.density_g_cm3
-    need = float(np.linalg.norm(need_vec))
-    if need > 1e-9:
-        axis = _direction_angle(-need_vec)
-    else:
-        axis = 180.0
-    u = np.array([-math.sin(math.radians(axis)), math.cos(math.radians(axis))])  # towards the main row
-    hi = min(limits.max_depth, thickness - limits.min_wall)
-    best = None
-    samp_main = _Sampler(clearance, axis)
-    samp_back = _Sampler(clearance, axis + 180.0)
-    for n in (2, 4, 6, 8, 10, 12):
-        for d in reversed(limits.drills):
-            pl = 0.5 * d / math.tan(math.radians(0.5 * limits.point_angle)) if limits.point_angle < 180 else 0
-            top = hi - pl
-            if top < MIN_HOLE_DEPTH:
+    sampler = _Sampler(clearance, 90.0)   # the line through the crank axis along X
+    for sets in (1, 2, 3):
+        choices = []
+        for d in limits.drills:
+            point = 0.5 * d / math.tan(math.radians(0.5 * limits.point_angle)) if limits.point_angle < 180 else 0.0
+            hi = min(limits.max_depth, thickness - limits.min_wall - point)
+            if hi < MIN_HOLE_DEPTH:
                 continue
-            main = next((r for r in samp_main.rows(d, limits.min_wall, odd=False, max_angle=90.0)
-                         if sum(len(g) for g in r.groups) >= n), None)
-            back = next((r for r in samp_back.rows(d, limits.min_wall, odd=False, max_angle=90.0)
-                         if sum(len(g) for g in r.groups) >= n), None)
-            if main is None or back is None:
-                continue
-            g = n // 2
+            for row in sampler.rows(d, limits.min_wall, odd=False, max_angle=90.0):
+                if len(row.groups) < sets:
+                    continue
+                groups = row.groups[:sets]
 
-            def rows_at(h1, h2):
-                f1 = _row_features(main, axis, kind="hole", depth=h1, through_groups=0, thickness=thickness,
-                                   limits=limits, count_groups=g)
-                f2 = _row_features(back, axis + 180.0, kind="hole", depth=h2, through_groups=0,
-                                   thickness=thickness, limits=limits, count_groups=g)
-                return f1, f2
+                def holes(depth, row=row, groups=groups, d=d):
+                    out = []
+                    for g in groups:
+                        a = g[0]
+                        for ang in (90.0 + a, 90.0 - a, -90.0 + a, -90.0 - a):
+                            x, y = _at(row.radius, ang)
+                            out.append(Hole(x=round(x, 3) + 0.0, y=round(y, 3) + 0.0, diameter=d, depth=depth,
+                                            point_angle=limits.point_angle, face="outer"))
+                    return out
 
-            def eff(h1, h2):
-                f1, f2 = rows_at(h1, h2)
-                return _total(f1 + f2, thickness=thickness, web_density=rho, plug_density=None)
+                def mass(depth, holes=holes):
+                    return -_total(holes(depth), thickness=thickness, web_density=rho).mass
 
-            base = eff(MIN_HOLE_DEPTH, MIN_HOLE_DEPTH)
-            d1 = eff(MIN_HOLE_DEPTH + 1, MIN_HOLE_DEPTH) - base
-            d2 = eff(MIN_HOLE_DEPTH, MIN_HOLE_DEPTH + 1) - base
-            a = np.array([[d1.mass, d2.mass], [float(np.dot(d1.unbalance, u)), float(np.dot(d2.unbalance, u))]])
-            rhs = np.array([want_mass - base.mass, float(np.dot(need_vec, u)) - float(np.dot(base.unbalance, u))])
-            try:
-                dh = np.linalg.solve(a, rhs)
-            except np.linalg.LinAlgError:
-                continue
-            h1, h2 = MIN_HOLE_DEPTH + dh[0], MIN_HOLE_DEPTH + dh[1]
-            if not (MIN_HOLE_DEPTH <= h1 <= top and MIN_HOLE_DEPTH <= h2 <= top):
-                continue
-            h1r, h2r = _round_to(h1, limits.depth_step), _round_to(h2, limits.depth_step)
-            effect = eff(h1r, h2r)
-            if np.all(np.abs(effect.unbalance - need_vec) <= tolerance):
-                best = (rows_at(h1r, h2r), effect)
-                break
-        if best:
-            break
-    if best is None:
-        raise Infeasible(f"web {name}: cannot take {lighten:g} g more off while holding the target with holes "
-                         f"within min_wall = {limits.min_wall:g} mm and max_depth = {limits.max_depth:g} mm")
-    (f1, f2), effect = best
-    feats = _machining_order(f1 + f2)
-    predicted = before + effect
-    why = (f"lightening: {len(f1)} holes opposite the needed change and {len(f2)} on the other side, depths "
-           f"solved together so the web loses {-effect.mass:.1f} g ({-want_mass - lighten:.1f} g the balance "
-           f"correction alone would take, plus the {lighten:g} g asked) and still reaches its target")
-    binding = _binding(feats, section=section, region_parts=None, limits=limits, thickness=thickness)
-    return WebPlan(name, "holes", tuple(feats), before, predicted, tuple(target), tolerance, why, binding)
+                m_lo, m_hi = mass(MIN_HOLE_DEPTH), mass(hi)
+                if not (m_lo <= lighten <= m_hi):
+                    continue
+                exact = MIN_HOLE_DEPTH + (lighten - m_lo) / (m_hi - m_lo) * (hi - MIN_HOLE_DEPTH)
+                step = limits.depth_step
+                grid = [min(max(c, math.ceil(MIN_HOLE_DEPTH / step) * step), math.floor(hi / step) * step)
+                        for c in (math.floor(exact / step) * step, math.ceil(exact / step) * step)]
+                depth = round(min(grid, key=lambda g: abs(mass(round(g, 6)) - lighten)), 6)
+                choices.append((-row.radius, -d, holes(depth)))
+                break  # the outermost row for this drill
+        if choices:
+            choices.sort(key=lambda c: (c[0], c[1]))
+            return choices[0][2]
+    raise Infeasible(f"web {name}: cannot take {lighten:g} g off in balanced sets of four blind holes within "
+                     f"min_wall = {limits.min_wall:g} mm and max_depth = {limits.max_depth:g} mm")

@@ -55,9 +55,6 @@ def planned(tmp_path_factory):
     return tmp, job, clean, _crank_sum(tmp / "plan")
 
 
-@pytest.mark.xfail(strict=True, reason="pipeline._feature_rows (pipeline.py:208) adds an 'effect' table to every "
-                   "feature row of plan.json, and pipeline.previous_features passes the rows to "
-                   "feature_from_table, which refuses the unknown key: trim --from a plan folder exits 2")
 def test_trim_reads_the_plan_folder_as_written(planned):
     tmp, job, _, _ = planned
     assert pc.run_cli(["trim", job, "--from", tmp / "plan", "--unbalance", "300", "--angle", "40",
