@@ -193,10 +193,18 @@ def safety_figures(job, webs: list[WebWork]) -> dict:
 
 
 # ------------------------------------------------------------------ plan.json
+def _fine(x: float) -> float:
+    """Mass properties keep 9 significant digits in plan.json, so predicted and exact figures that agree
+    to 1e-12 print alike; round-off noise below 1e-9 becomes 0.0."""
+    x = float(x)
+    return 0.0 if abs(x) < 1e-9 else float(f"{x:.9g}") + 0.0
+
+
 def _summary(p: MassProps) -> dict:
     s = p.summary()
-    return {"mass_g": _num(s["mass_g"]), "volume_mm3": _num(s["volume_mm3"]), "com_mm": _vec(s["com_mm"]),
-            "unbalance_gmm": _vec(s["unbalance_gmm"]), "inertia_z_gmm2": _num(s["inertia_z_gmm2"])}
+    return {"mass_g": _fine(s["mass_g"]), "volume_mm3": _fine(s["volume_mm3"]),
+            "com_mm": [_fine(v) for v in s["com_mm"]], "unbalance_gmm": [_fine(v) for v in s["unbalance_gmm"]],
+            "inertia_z_gmm2": _fine(s["inertia_z_gmm2"])}
 
 
 def _feature_rows(features, section):
@@ -205,7 +213,7 @@ def _feature_rows(features, section):
         t = feature_to_table(f)
         t = {k: (_num(v) if isinstance(v, float) else v) for k, v in t.items()}
         fx = feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3)
-        t["effect"] = {"mass_g": _num(fx.mass), "unbalance_gmm": _vec(fx.unbalance)}
+        t["effect"] = {"mass_g": _fine(fx.mass), "unbalance_gmm": [_fine(v) for v in fx.unbalance]}
         rows.append(t)
     return rows
 
@@ -389,7 +397,7 @@ def _jsonable(obj):
     if isinstance(obj, (list, tuple)):
         return [_jsonable(v) for v in obj]
     if isinstance(obj, (np.floating, float)):
-        return _num(float(obj))
+        return _fine(float(obj))
     if isinstance(obj, np.integer):
         return int(obj)
     if isinstance(obj, np.ndarray):
