@@ -43,6 +43,7 @@ MIN_HOLE_DEPTH = 1.0      # mm: a shallower hole is a spot face, not a correctio
 MAX_PATTERN = 16          # holes or plugs in one pattern
 ANGLE_STEP = 0.5          # deg, the grid hole positions are chosen on
 RADIUS_STEP = 0.5         # mm
+POCKET_CHORD = 0.05        # mm, flattening of kidney outlines for the containment test
 CANDIDATES = 40           # best layouts of the fewest features that are tuned and compared
 
 
@@ -154,7 +155,7 @@ class Clearance:
     chord error, at most `CHORD`, is taken off to stay on the safe side).
     """
 
-    CHORD = 0.01  # mm
+    CHORD = 0.05  # mm: coarse enough to be quick, and taken off every clearance
 
     def __init__(self, *, section, existing, limits: Limits, keep_out=()):
         self.terms = []
@@ -200,11 +201,13 @@ class Clearance:
             elif kind == "out_circle":
                 c = np.hypot(xs - geom[0], ys - geom[1]) - value
             else:
-                if pts is None:
-                    pts = shapely.points(xs, ys)
                 inside = shapely.contains_xy(geom, xs, ys)
-                dist = shapely.distance(geom.exterior, pts)
-                c = np.where(inside, dist - value, -1.0) if kind == "in_poly" else np.where(inside, -1.0, dist - value)
+                # only points still in the running need a distance: the rest are out already
+                wanted = (inside if kind == "in_poly" else ~inside) & (out > 0)
+                c = np.full(xs.shape, -1.0)
+                if wanted.any():
+                    dist = shapely.distance(geom.exterior, shapely.points(xs[wanted], ys[wanted]))
+                    c[wanted] = dist - value
             out = np.minimum(out, c)
         return out
 
@@ -412,7 +415,7 @@ def _kidney(r_in, r_out, axis, span, depth, corner):
                   angle_end=round(axis + span / 2, 4), depth=depth, corner_radius=corner, face="outer")
 
 
-def _plan_pocket(*, region, sampler, axis, need_vec, thickness, web_density, limits, tolerance):
+def _plan_pocket(*, region, r_top, axis, need_vec, thickness, web_density, limits, tolerance):
     u = np.array(need_vec) / np.linalg.norm(need_vec)
     need = float(np.linalg.norm(need_vec))
     depth_max = round(math.floor(min(limits.max_depth, thickness - limits.min_wall) / limits.depth_step)
@@ -421,12 +424,11 @@ def _plan_pocket(*, region, sampler, axis, need_vec, thickness, web_density, lim
         return None, 0.0
     shapely.prepare(region)
     reach, found = 0.0, []
-    r_top = sampler.r_max
     widths = [w for w in (4.0, 6.0, 8.0, 10.0, 12.0, 16.0, 20.0, 25.0, 30.0) if w < r_top]
 
     def fits(p):
         try:
-            return region.contains(footprint_polygon(p, 0.02))
+            return region.contains(footprint_polygon(p, POCKET_CHORD))
         except BadInput:  # corners that do not fit the kidney
             return False
 
@@ -547,9 +549,11 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
                                       thickness=thickness, web_density=web_density, plug_density=None,
                                       limits=limits, plug_material=None, blind_max=blind_max, tolerance=tolerance)
         elif m == "pockets":
-            sampler = _Sampler(clearance, remove_axis)
-            region = allowed_region(section=section, existing=existing, limits=limits, keep_out=keep_out)
-            feats, reach = _plan_pocket(region=region, sampler=sampler, axis=remove_axis, need_vec=need_vec,
+            # the flattened kidney lies inside the true one by up to a chord: shrink the region by as much
+            region = allowed_region(section=section, existing=existing, limits=limits,
+                                    keep_out=keep_out).buffer(-POCKET_CHORD, quad_segs=8)
+            feats, reach = _plan_pocket(region=region, r_top=clearance.r_max(), axis=remove_axis,
+                                        need_vec=need_vec,
                                         thickness=thickness, web_density=web_density, limits=limits,
                                         tolerance=tolerance)
         else:
@@ -654,6 +658,12 @@ def _lightening_holes(*, name, section, clearance, limits, lighten):
                 def mass(depth, holes=holes):
                     return -_total(holes(depth), thickness=thickness, web_density=rho).mass
 
+                # screen with the closed form (cylinder to the shoulder plus the point's cone), then
+                # solve with the features' own mass properties
+                area = math.pi * 0.25 * d * d * rho * 1e-3 * 4 * sets
+                if not (area * (MIN_HOLE_DEPTH + point / 3) <= lighten * (1 + 1e-9)
+                        and lighten <= area * (hi + point / 3) * (1 + 1e-9)):
+                    continue
                 m_lo, m_hi = mass(MIN_HOLE_DEPTH), mass(hi)
                 if not (m_lo <= lighten <= m_hi):
                     continue
