@@ -19,8 +19,8 @@ from .errors import BadInput, GeomgenError
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line and exit 2, as for every other bad input
-        self.exit(2, f"geomgen: {message} (see 'geomgen {self.prog.split()[-1]} --help')\n"
-                  if " " in self.prog else f"geomgen: {message} (see 'geomgen --help')\n")
+        help_cmd = "geomgen --help" if " " not in self.prog else f"geomgen {self.prog.split()[-1]} --help"
+        self.exit(2, f"geomgen: {message} (see '{help_cmd}')\n")
 
 
 def _add_out(p, required=True):

@@ -118,7 +118,7 @@ def plan_webs(job, *, existing=None, targets=None, tolerances=None, method=None,
 
 
 # ------------------------------------------------------------------ crank figures
-def in_crank_frame(props: MassProps, index: int, *, thickness_a: float, gap: float) -> MassProps:
+def in_crank_frame(props: MassProps, index: int, *, gap: float) -> MassProps:
     """A web's properties in the crank frame: web a as it is; web b turned 180 deg about Y,
     its inner face `gap` mm from web a's inner face (on -z)."""
     if index == 0:
@@ -129,7 +129,7 @@ def in_crank_frame(props: MassProps, index: int, *, thickness_a: float, gap: flo
 def crank_figures(job, webs: list[WebWork], props: list[MassProps]) -> dict:
     e = job.engine
     gap = job.output.crank_gap
-    placed = [in_crank_frame(p, i, thickness_a=webs[0].section.thickness, gap=gap) for i, p in enumerate(props)]
+    placed = [in_crank_frame(p, i, gap=gap) for i, p in enumerate(props)]
     total = sum(placed, MassProps.zero())
     u = total.unbalance
     z_mid = -0.5 * gap
@@ -220,10 +220,9 @@ def _feature_rows(features, section):
 
 def trim_figures(job, webs: list[WebWork], exact: list[MassProps], trim: dict) -> dict:
     """What the trim takes off, in the crank frame, against the measured heavy spot."""
-    gap, t_a = job.output.crank_gap, webs[0].section.thickness
-    before = sum((in_crank_frame(w.plan.before, i, thickness_a=t_a, gap=gap) for i, w in enumerate(webs)),
-                 MassProps.zero())
-    after = sum((in_crank_frame(p, i, thickness_a=t_a, gap=gap) for i, p in enumerate(exact)), MassProps.zero())
+    gap = job.output.crank_gap
+    before = sum((in_crank_frame(w.plan.before, i, gap=gap) for i, w in enumerate(webs)), MassProps.zero())
+    after = sum((in_crank_frame(p, i, gap=gap) for i, p in enumerate(exact)), MassProps.zero())
     a = math.radians(trim["heavy_spot_deg"])
     heavy = trim["measured_gmm"] * np.array([-math.sin(a), math.cos(a)])
     change = after.unbalance - before.unbalance

@@ -24,9 +24,8 @@ from dataclasses import dataclass, field
 import shapely
 
 from .errors import BadInput, VerificationFailed
-from .features import Hole, Plug, Pocket
-from .loops import Arc, Line, Loop, circle
-from .materials import material as _material
+from .features import Hole, Plug, Pocket, footprint, plug_density_of, z_range
+from .loops import Arc, Line, Loop
 
 #: how far a tool reaches past the face it enters, mm (avoids coplanar faces)
 _OVERSHOOT = 1.0
@@ -74,40 +73,6 @@ class WebSolid:
             (p.name, p.shape, p.density_g_cm3) for p in self.plugs]
 
 
-# --------------------------------------------------------------------------
-# feature geometry without the kernel: footprints and depth ranges
-# --------------------------------------------------------------------------
-
-def plug_density(plug: Plug) -> float:
-    """The plug's density, g/cm^3: the number given, else its material's."""
-    if plug.density is not None:
-        return float(plug.density)
-    return _material(plug.material, "plug.material").density
-
-
-def feature_loop(feature) -> Loop:
-    """The exact plan-view outline of a feature (circle or kidney), ccw."""
-    if isinstance(feature, (Hole, Plug)):
-        return circle(feature.x, feature.y, 0.5 * feature.diameter)
-    if isinstance(feature, Pocket):
-        from .features import footprint  # the kidney with its fillet corners
-        return footprint(feature).oriented(True)
-    raise BadInput(f"unknown feature type {type(feature).__name__}; allowed: hole, pocket, plug")
-
-
-def feature_z_range(feature, thickness: float) -> tuple[float, float]:
-    """(z0, z1) mm occupied by the feature, drill point included."""
-    if isinstance(feature, Hole):
-        if feature.through:
-            return (0.0, thickness)
-        reach = feature.depth + feature.point_length
-    elif isinstance(feature, Pocket):
-        reach = feature.depth
-    else:
-        reach = feature.length
-    return (thickness - reach, thickness) if feature.face == "outer" else (0.0, reach)
-
-
 def _where(geom) -> str:
     p = geom.representative_point() if not geom.is_empty else shapely.Point(math.nan, math.nan)
     return f"({p.x:.2f}, {p.y:.2f}) mm"
@@ -142,8 +107,8 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_w
 
     prints, ranges = [], []
     for i, f in enumerate(features):
-        fp = feature_loop(f).polygon(_CHECK_CHORD_MM)
-        z0, z1 = feature_z_range(f, t)
+        fp = footprint(f).polygon(_CHECK_CHORD_MM)
+        z0, z1 = z_range(f, t)
         prints.append(fp)
         ranges.append((z0, z1))
         if not outer.contains(fp):
@@ -261,7 +226,7 @@ def _tools_and_plugs(features, thickness: float):
             tools.append(_hole_tool(f, thickness))
         elif isinstance(f, Pocket):
             z0, z1 = _blind_range(f, thickness, f.depth, overshoot=_OVERSHOOT)
-            tools.append(_prism(feature_loop(f), z0, z1))
+            tools.append(_prism(footprint(f).oriented(True), z0, z1))
         elif isinstance(f, Plug):
             reach, through = _plug_reach(f, thickness)
             z0, z1 = _blind_range(f, thickness, reach, overshoot=_OVERSHOOT)
@@ -271,7 +236,7 @@ def _tools_and_plugs(features, thickness: float):
             tools.append(cq.Solid.makeCylinder(r, z1 - z0, cq.Vector(f.x, f.y, z0)))
             p0 = 0.0 if through else (thickness - reach if f.face == "outer" else 0.0)
             shape = cq.Solid.makeCylinder(r, reach, cq.Vector(f.x, f.y, p0))
-            plugs.append(PlugSolid(shape, plug_density(f), i, f"plug-{len(plugs) + 1}"))
+            plugs.append(PlugSolid(shape, plug_density_of(f), i, f"plug-{len(plugs) + 1}"))
         else:
             raise BadInput(f"feature {i}: unknown type {type(f).__name__}; allowed: hole, pocket, plug")
     return tools, plugs
