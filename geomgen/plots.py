@@ -15,15 +15,12 @@ def study_figure(result: dict):
 
     Returns a matplotlib Figure (not attached to pyplot).
     """
-    import matplotlib
-
-    matplotlib.use("Agg")
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
     inp = result["inputs"]
+    # No canvas is attached here: savefig picks the one its format needs (SVG or Agg), so an SVG
+    # never pays for loading the raster backend.
     fig = Figure(figsize=(12.5, 6.4))
-    FigureCanvasAgg(fig)
     polar = fig.add_subplot(1, 2, 1, projection="polar")
     sweep_ax = fig.add_subplot(1, 2, 2)
 
