@@ -17,13 +17,12 @@ Run:  python -m pytest tests/benchmarks/bench_inspect_dxf.py -s      (or as a sc
 
 from __future__ import annotations
 
-import statistics
-import subprocess
 import sys
 import time
 from pathlib import Path
 
 import pytest
+from timing import emit, interleaved_medians
 
 REPEATS = 3
 
@@ -46,15 +45,6 @@ def write_demo_dxf(path: Path) -> Path:
     return path
 
 
-def _wall(cmd: list[str]) -> float:
-    t0 = time.perf_counter()
-    done = subprocess.run(cmd, capture_output=True, text=True, timeout=120)
-    elapsed = time.perf_counter() - t0
-    if done.returncode != 0:
-        raise RuntimeError(f"{' '.join(cmd)} failed ({done.returncode}): {done.stderr.strip()[-400:]}")
-    return elapsed
-
-
 def measure(workdir: Path) -> dict:
     """Median wall times (s) of the two subprocesses, their ratio, and the in-process time."""
     dxf = write_demo_dxf(workdir / "demo.dxf")
@@ -62,19 +52,13 @@ def measure(workdir: Path) -> dict:
                    "from geomgen.section import inspect_dxf; "
                    f"print(inspect_dxf({str(dxf)!r}, thickness=18.0, density_g_cm3=7.85).summary())"]
     ezdxf_cmd = [sys.executable, "-c", "import ezdxf"]
-    _wall(inspect_cmd)  # warm the file cache
-    _wall(ezdxf_cmd)
-    ins, ez = [], []
-    for _ in range(REPEATS):  # interleaved, so a busy moment hits both alike
-        ez.append(_wall(ezdxf_cmd))
-        ins.append(_wall(inspect_cmd))
+    ins_s, ez_s = interleaved_medians(inspect_cmd, ezdxf_cmd, repeats=REPEATS)
     from geomgen.section import inspect_dxf
 
     inspect_dxf(dxf, thickness=18.0, density_g_cm3=7.85)
     t0 = time.perf_counter()
     inspect_dxf(dxf, thickness=18.0, density_g_cm3=7.85)
     in_process = time.perf_counter() - t0
-    ins_s, ez_s = statistics.median(ins), statistics.median(ez)
     return {"inspect_dxf_s": ins_s, "import_ezdxf_s": ez_s, "ratio": ins_s / ez_s,
             "in_process_s": in_process}
 
@@ -87,10 +71,7 @@ def _report(m: dict) -> str:
 @pytest.mark.benchmark
 def test_inspect_dxf_vs_ezdxf_import(tmp_path, record_property, capsys):
     m = measure(tmp_path)
-    for key, value in m.items():
-        record_property(key, value)
-    with capsys.disabled():
-        print("\n[benchmark] " + _report(m))
+    emit(m, _report(m), record_property, capsys)
 
 
 if __name__ == "__main__":

@@ -4,20 +4,17 @@ Reports (prints, and records as test properties) the ratio
     wall time of `python -m geomgen study JOB --out DIR`  /  wall time of `python -c "import cadquery"`
 measured in fresh subprocesses in the same run; the target is below 0.3 (the
 study must not pay for the CAD kernel).  No assert on time: machines differ.
-Falls back to calling study() + render() in a subprocess if the CLI is absent.
 
 Run:  python -m pytest tests/benchmarks/bench_study.py -s      (or as a script)
 """
 
 from __future__ import annotations
 
-import statistics
-import subprocess
 import sys
-import time
 from pathlib import Path
 
 import pytest
+from timing import emit, interleaved_medians
 
 TARGET = 0.3
 REPEATS = 3
@@ -52,27 +49,6 @@ pin_bore = 28.0
 main_bore = 0.0
 """
 
-FALLBACK = """
-from dataclasses import dataclass
-from geomgen import study
-from geomgen.job import Engine, Balancer
-e = Engine(stroke=64.0, rod_length=110.0, max_rpm=11000, balance_factor=0.55,
-           reciprocating={"piston": 250.0, "rod_small_end": 80.0},
-           rotating={"rod_big_end": 200.0, "crankpin": 140.0})
-files = study.render(study.study(engine=e, balancer=Balancer(0.5, (60.0, -20.0))))
-assert files["study.svg"]
-"""
-
-
-def _wall(cmd: list[str], cwd: Path) -> float:
-    t0 = time.perf_counter()
-    done = subprocess.run(cmd, cwd=cwd, capture_output=True, text=True, timeout=300)
-    elapsed = time.perf_counter() - t0
-    if done.returncode != 0:
-        raise RuntimeError(f"{' '.join(cmd)} failed ({done.returncode}): {done.stderr.strip()[-400:]}")
-    return elapsed
-
-
 def measure(workdir: Path) -> dict:
     """Median wall times (s) of the two subprocesses and their ratio."""
     job = workdir / "job.toml"
@@ -80,34 +56,19 @@ def measure(workdir: Path) -> dict:
     cad_cmd = [sys.executable, "-c", "import cadquery"]
     study_cmd = [sys.executable, "-m", "geomgen", "study", str(job), "--out", str(workdir / "out"),
                  "--force"]
-    how = "cli"
-    try:
-        _wall(study_cmd, workdir)  # warm the file cache; also tells whether the CLI works
-    except RuntimeError:
-        how, study_cmd = "function", [sys.executable, "-c", FALLBACK]
-        _wall(study_cmd, workdir)
-    _wall(cad_cmd, workdir)
-    cad, stu = [], []
-    for _ in range(REPEATS):  # interleaved, so a busy moment hits both alike
-        cad.append(_wall(cad_cmd, workdir))
-        stu.append(_wall(study_cmd, workdir))
-    cad_s, study_s = statistics.median(cad), statistics.median(stu)
-    return {"import_cadquery_s": cad_s, "study_s": study_s, "ratio": study_s / cad_s,
-            "how": how, "target": TARGET}
+    study_s, cad_s = interleaved_medians(study_cmd, cad_cmd, repeats=REPEATS, cwd=workdir)
+    return {"import_cadquery_s": cad_s, "study_s": study_s, "ratio": study_s / cad_s, "target": TARGET}
 
 
 def _report(m: dict) -> str:
-    return (f"study ({m['how']}) {m['study_s']:.2f} s / import cadquery {m['import_cadquery_s']:.2f} s"
+    return (f"study (cli) {m['study_s']:.2f} s / import cadquery {m['import_cadquery_s']:.2f} s"
             f" = ratio {m['ratio']:.2f} (target < {m['target']})")
 
 
 @pytest.mark.benchmark
 def test_study_vs_cadquery_import(tmp_path, record_property, capsys):
     m = measure(tmp_path)
-    for key, value in m.items():
-        record_property(key, value)
-    with capsys.disabled():
-        print("\n[benchmark] " + _report(m))
+    emit(m, _report(m), record_property, capsys)
 
 
 if __name__ == "__main__":
