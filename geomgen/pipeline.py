@@ -412,6 +412,10 @@ def summary_lines(doc: dict) -> list[str]:
         lines.append(f"trim: measured {t['measured_gmm']:.1f} g*mm at {t['heavy_spot_deg']:g} deg from the pin (crank "
                      f"frame), taken off {t['on_webs']}; left after the trim {math.hypot(*t['left_gmm']):.2f} g*mm "
                      f"({100 * t['left_share_of_measured']:.2f} % of the measured)")
+        if t["on_webs"].startswith("web "):
+            cx, cy = crank["couple_gmm2"]
+            lines.append(f"  all on one web: the crank keeps a couple of {math.hypot(cx, cy):.0f} g*mm^2 "
+                         f"({cx:.0f}, {cy:.0f}) about its mid-plane; a dynamic balance shows it")
         lines.append("  (the balance factor below is against the design target; the trim answers the measurement)")
     lines += [
              f"balance factor asked {crank['balance_factor_asked']:.3f}, achieved {crank['balance_factor_achieved']:.4f} "
