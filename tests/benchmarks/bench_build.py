@@ -22,6 +22,8 @@ import subprocess
 import sys
 import time
 
+import pytest
+
 GEOMGEN = r"""
 import json, math, sys, tempfile, time
 t0 = time.perf_counter()
@@ -113,6 +115,15 @@ def main(argv=None) -> None:
     print(f"geomgen 24 / floor: {results[24]['wall'] / floor['wall']:.2f} x wall "
           f"(target <= 1.5), {work(results[24]) / work(floor):.2f} x after imports; "
           f"flat-bottomed 24: {flat['wall'] / floor['wall']:.2f} x wall")
+
+
+@pytest.mark.benchmark
+@pytest.mark.cad
+def test_build_benchmark(capsys):
+    """Prints build time against the number of holes and against the bare kernel floor (no time assert)."""
+    with capsys.disabled():
+        print()
+        main(["--repeat", "1"])
 
 
 if __name__ == "__main__":
