@@ -174,6 +174,18 @@ def _find_circle(loops, centre, tol):
     return None
 
 
+def _drawn_bore(loops, centre, diameter, *, key, source):
+    """Index of the drawn circle at `centre`, or None; BadInput if its size disagrees with the job's `key`."""
+    i = _find_circle(loops, centre, PIN_CENTRE_TOL_MM)
+    if i is not None:
+        drawn = 2.0 * loops[i].as_circle()[2]
+        if abs(drawn - diameter) > PIN_DIAMETER_TOL_MM:
+            what = key.replace("_", " ")
+            raise BadInput(f"{source}: the {what} disagrees: the DXF says {drawn:.6g} mm, "
+                           f"the job says {key} = {diameter:.6g} mm")
+    return i
+
+
 def _near_miss(loops, centre, name, where, hint):
     """A drawn circle that covers `centre` but is not centred on it: the stroke and drawing disagree."""
     for loop in loops:
@@ -204,13 +216,9 @@ def outline_web(*, path, thickness: float, density_g_cm3: float, stroke: float, 
     names = [f"the drawn loop starting at {_fmt(b.segments[0].start)}" for b in bores]
     source = f"{where} {path}"
 
-    i = _find_circle(bores, pin_centre, PIN_CENTRE_TOL_MM)
+    i = _drawn_bore(bores, pin_centre, pin_bore, key="pin_bore", source=source)
     if i is not None:
-        drawn = 2.0 * bores[i].as_circle()[2]
-        if abs(drawn - pin_bore) > PIN_DIAMETER_TOL_MM:
-            raise BadInput(f"{source}: the pin bore disagrees: the DXF says {drawn:.6g} mm, "
-                           f"the job says pin_bore = {pin_bore:.6g} mm")
-        names[i] = f"the pin bore ({drawn:g} mm at {_fmt(pin_centre)})"
+        names[i] = f"the pin bore ({pin_bore:g} mm at {_fmt(pin_centre)})"
     else:
         _near_miss(bores, pin_centre, "pin", source,
                    "check engine.stroke or the drawing's origin (crank axis at 0, 0; pin on +Y)")
@@ -222,13 +230,9 @@ def outline_web(*, path, thickness: float, density_g_cm3: float, stroke: float, 
         names.append(f"the pin bore ({pin_bore:g} mm at {_fmt(pin_centre)})")
 
     if main_bore > 0:
-        k = _find_circle(bores, (0.0, 0.0), PIN_CENTRE_TOL_MM)
+        k = _drawn_bore(bores, (0.0, 0.0), main_bore, key="main_bore", source=source)
         if k is not None:
-            drawn = 2.0 * bores[k].as_circle()[2]
-            if abs(drawn - main_bore) > PIN_DIAMETER_TOL_MM:
-                raise BadInput(f"{source}: the main bore disagrees: the DXF says {drawn:.6g} mm, "
-                               f"the job says main_bore = {main_bore:.6g} mm")
-            names[k] = f"the main bore ({drawn:g} mm)"
+            names[k] = f"the main bore ({main_bore:g} mm)"
         else:
             bores.append(circle(0.0, 0.0, 0.5 * main_bore))
             names.append(f"the main bore ({main_bore:g} mm)")
