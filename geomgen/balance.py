@@ -1,6 +1,6 @@
 """Single-cylinder balance: masses, target, kinematics, shaking force (numpy only).
 
-Conventions (shared/design.md, and the choices made here):
+Conventions (the README's frame, and the choices made here):
 
 - Crank frame (x, y): crank axis Z through the origin, seen from +Z; that is
   web a's frame.  At top dead centre the pin is on the cylinder axis.
@@ -30,6 +30,9 @@ from .errors import BadInput
 
 #: g * mm / s^2 expressed in N
 GMM_S2_TO_N = 1e-6
+#: the balance factors a job may ask for, and so the ones the sweep covers
+BALANCE_FACTOR_RANGE = (0.0, 1.5)
+SWEEP_FACTORS = np.round(np.arange(151) * 0.01, 2)
 
 
 def rpm_to_omega(rpm: float) -> float:
@@ -50,25 +53,30 @@ def _check_geometry(crank_radius: float, rod_length: float) -> None:
 # --- masses and targets --------------------------------------------------
 
 def bob_weight(*, m_rotating: float, m_reciprocating: float, balance_factor: float) -> float:
-    """Bob weight for a balancing machine, g, clamped at the crankpin radius.
+    """Bob weight to hang on the assembled crank's pin for a balancing machine, g.
 
-    m_rotating + BF * m_reciprocating: with it on the pin, a crank whose webs
-    are at target balances statically.
+    m_rotating + BF * m_reciprocating, where m_rotating is the rod's rotating
+    end only (big end, bearing, cage, washers).  The crank's own parts at the
+    pin (crankpin, nuts) are on the crank already and never on the bob.  With
+    this bob on the pin, a crank whose webs are at `web_target` balances
+    statically: webs + crank parts + bob sum to zero unbalance.
     """
     return float(m_rotating + balance_factor * m_reciprocating)
 
 
 def web_target(
-    *, m_rotating: float, m_reciprocating: float, balance_factor: float, crank_radius: float
+    *, m_rotating: float, m_reciprocating: float, balance_factor: float, crank_radius: float,
+    m_crank_parts: float = 0.0,
 ) -> np.ndarray:
     """Unbalance the two webs together must carry, (2,) float, g*mm.
 
-    U_webs = -(m_rotating + BF * m_reciprocating) * r along Y, x = 0.
+    U_webs = -(m_rotating + m_crank_parts + BF * m_reciprocating) * r along Y, x = 0:
+    the webs counter the bob weight and the crank's own parts at the pin.
     """
-    u = bob_weight(
+    bob = bob_weight(
         m_rotating=m_rotating, m_reciprocating=m_reciprocating, balance_factor=balance_factor
     )
-    return np.array([0.0, -u * crank_radius])
+    return np.array([0.0, -(bob + m_crank_parts) * crank_radius])
 
 
 def split_target(target: np.ndarray, shares) -> list[np.ndarray]:
@@ -251,13 +259,14 @@ def balance_factor_sweep(
 ) -> dict[str, np.ndarray]:
     """Peak residual force over one revolution for each balance factor.
 
-    factors : (k,) balance factors, default 0 .. 1 in 0.01 steps (101).
+    factors : (k,) balance factors, default SWEEP_FACTORS (0 .. 1.5, the
+        accepted range, in 0.01 steps).
     samples : crank angles per revolution the peaks are taken over.
     Returns {"balance_factor", "peak", "peak_along", "peak_across"}: (k,) each,
     forces in N (peaks are maxima of magnitudes).
     """
     if factors is None:
-        factors = np.round(np.arange(101) * 0.01, 2)
+        factors = SWEEP_FACTORS
     bf = np.asarray(factors, dtype=float)
     th = np.arange(samples) * (2.0 * math.pi / samples)
     # The force is affine in BF: F = F(BF=0) - BF * m_recip r omega^2 e(theta).
@@ -278,6 +287,26 @@ def balance_factor_sweep(
         "peak_along": np.max(np.abs(forces @ along), axis=1),
         "peak_across": np.max(np.abs(forces @ across), axis=1),
     }
+
+
+def reciprocating_torque(
+    theta, *, crank_radius: float, rod_length: float, omega: float, m_reciprocating: float,
+) -> np.ndarray:
+    """Torque of the reciprocating parts' inertia on the crank about its axis, (n,) N*m.
+
+    T = F_inertia * ds/dtheta (virtual work), F_inertia = -m * s'' along the
+    cylinder, by the exact slider-crank law at constant omega.  Its mean over a
+    revolution is zero; it swings the crank's speed and the engine about the
+    crank axis.  Counterweights at constant speed put no torque on the crank,
+    so no balance factor changes it.  Positive: in the direction of rotation.
+    """
+    th = np.atleast_1d(np.asarray(theta, dtype=float))
+    r, l = crank_radius, rod_length
+    acc = piston_acceleration(th, crank_radius=r, rod_length=l, omega=omega)
+    q = np.sqrt(l * l - (r * np.sin(th)) ** 2)
+    ds_dtheta = -r * np.sin(th) - r * r * np.sin(th) * np.cos(th) / q          # mm/rad
+    force_n = -m_reciprocating * acc * GMM_S2_TO_N
+    return force_n * ds_dtheta * 1e-3
 
 
 def best_balance_factor(sweep: dict[str, np.ndarray]) -> float:

@@ -14,7 +14,7 @@ import sys
 from pathlib import Path
 
 from . import __version__
-from .errors import BadInput, GeomgenError
+from .errors import BadInput, GeomgenError, warn_all
 
 
 class _Parser(argparse.ArgumentParser):
@@ -58,7 +58,11 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--from", dest="from_dir", required=True, metavar="DIR", help="the earlier plan or build folder")
     p.add_argument("--unbalance", required=True, metavar="U",
                    help="measured residual, g*mm or a unit string (\"0.5 g*in\"), or mass at a radius (\"0.8 g at 55 mm\")")
-    p.add_argument("--angle", required=True, metavar="A", help="heavy spot, deg from the pin, crank frame (web a's)")
+    p.add_argument("--angle", required=True, metavar="A",
+                   help="heavy spot as the balancing machine reads it: deg from the crankpin, measured in the "
+                        "direction of rotation ([engine] rotation)")
+    p.add_argument("--against-rotation", action="store_true",
+                   help="the --angle reading was taken against the direction of rotation")
     p.add_argument("--web", metavar="NAME", help="take it all off this web (default: shared between both)")
     _add_out(p)
     return parser
@@ -71,6 +75,7 @@ def _cmd_study(args) -> int:
 
     check_target(args.out, force=args.force)
     job = jobmod.load(args.job)
+    warn_all(job.warnings)
     result = study.study_of(job)
     files = study.render(result)
     with staged(args.out, force=args.force) as stage:

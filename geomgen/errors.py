@@ -31,3 +31,11 @@ class VerificationFailed(GeomgenError):
     """The solid and the prediction disagree beyond tolerance: exit code 4."""
 
     exit_code = 4
+
+
+def warn_all(lines) -> None:
+    """Print each warning as one line on stderr: things a job allows but a builder should look at."""
+    import sys
+
+    for line in lines:
+        print(f"geomgen: warning: {line}", file=sys.stderr)

@@ -21,6 +21,7 @@ from . import loops as _loops
 from .errors import BadInput
 from .massprops import MassProps
 from .materials import custom as _custom_material
+from .materials import MATERIALS as _MATERIALS
 from .materials import material as _material
 from .units import to_internal
 
@@ -114,11 +115,14 @@ _LENGTH_KEYS = {
 _ANGLE_KEYS = {"hole": ("point_angle",), "pocket": ("angle_start", "angle_end"), "plug": ()}
 
 
-def feature_from_table(table: dict, *, where: str, thickness: float | None = None) -> Feature:
+def feature_from_table(table: dict, *, where: str, thickness: float | None = None,
+                       plug_material=None) -> Feature:
     """A feature from a job or plan.json table; BadInput names `where` and the key.
 
     thickness : the web thickness, mm, used to fill `depth` of a through hole
     and `length` of a plug when they are left out.
+    plug_material : the job's `plug_material` (a materials.Material), which a plug
+    that names neither `material` nor `density` is made of.
     """
     if not isinstance(table, dict):
         raise BadInput(f"{where}: a feature must be a table with 'kind', got {table!r}")
@@ -161,6 +165,11 @@ def feature_from_table(table: dict, *, where: str, thickness: float | None = Non
             values["material"] = None
         elif "material" in table:
             values["material"] = _material(str(table["material"]), f"{where}.material").name
+        elif plug_material is not None:
+            if plug_material.name in _MATERIALS:
+                values["material"] = plug_material.name
+            else:
+                values["material"], values["density"] = None, plug_material.density
         if "length" not in values and thickness is not None:
             values["length"] = thickness
     required = [k for k in _LENGTH_KEYS[kind] + _ANGLE_KEYS[kind]

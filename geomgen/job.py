@@ -11,6 +11,7 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .balance import bob_weight, rpm_to_omega, web_target
 from .errors import BadInput
 from .materials import Material, custom, material
 from .units import to_internal
@@ -32,8 +33,14 @@ class Balancer:
 class Engine:
     """The engine of a job, in mm, g, rpm, degrees.
 
-    reciprocating / rotating : weighed parts by name, g.  Rotating parts are
-    carried at the crankpin radius (stroke/2).
+    reciprocating : weighed parts by name, g (piston, pin, rings, rod small end).
+    rotating : the rod's rotating end by name, g (big end, bearing, cage, washers),
+        at the crankpin radius (stroke/2); it goes on the bob weight.
+    crank_parts : the crank's own metal at the crankpin radius by name, g (the
+        crankpin, its nuts or plugs); the webs counter it, but it is part of the
+        rotor on a balancing machine, so it is never on the bob weight.
+    rotation : "ccw" or "cw", the crank's direction of rotation seen from web a's
+        outer face (+Z); crank angles and heavy-spot angles follow it.
     """
 
     stroke: float
@@ -43,6 +50,8 @@ class Engine:
     reciprocating: dict = field(default_factory=dict)
     rotating: dict = field(default_factory=dict)
     cylinder_tilt: float = 0.0
+    crank_parts: dict = field(default_factory=dict)
+    rotation: str = "ccw"
 
     @property
     def crank_radius(self) -> float:
@@ -54,12 +63,45 @@ class Engine:
 
     @property
     def m_rotating(self) -> float:
+        """The rod's rotating end, g (on the bob weight)."""
         return float(sum(self.rotating.values()))
+
+    @property
+    def m_crank_parts(self) -> float:
+        """The crank's own parts at the pin radius, g (countered by the webs, not on the bob)."""
+        return float(sum(self.crank_parts.values()))
+
+    @property
+    def m_at_pin(self) -> float:
+        """Everything that turns at the crankpin radius: rod's rotating end plus crank parts, g."""
+        return self.m_rotating + self.m_crank_parts
 
     @property
     def omega(self) -> float:
         """Crank speed at max_rpm, rad/s."""
-        return self.max_rpm * 2.0 * math.pi / 60.0
+        return rpm_to_omega(self.max_rpm)
+
+    @property
+    def bob_weight_g(self) -> float:
+        """The bob weight to hang on the assembled crank's pin, g."""
+        return bob_weight(m_rotating=self.m_rotating, m_reciprocating=self.m_reciprocating,
+                          balance_factor=self.balance_factor)
+
+    @property
+    def bf_unit_gmm(self) -> float:
+        """g*mm of web unbalance per balance-factor percent: m_reciprocating * stroke/2 / 100."""
+        return self.m_reciprocating * self.crank_radius / 100.0
+
+    def webs_target_gmm(self) -> tuple[float, float]:
+        """The unbalance both webs together must carry, crank frame, g*mm (x, y)."""
+        u = web_target(m_rotating=self.m_rotating, m_crank_parts=self.m_crank_parts,
+                       m_reciprocating=self.m_reciprocating, balance_factor=self.balance_factor,
+                       crank_radius=self.crank_radius)
+        return (float(u[0]), float(u[1]))
+
+    def balance_factor_of(self, webs_unbalance_y: float) -> float:
+        """The balance factor that a crank whose webs carry `webs_unbalance_y` g*mm (crank frame) has."""
+        return (-webs_unbalance_y / self.crank_radius - self.m_at_pin) / self.m_reciprocating
 
 
 @dataclass(frozen=True)
@@ -110,7 +152,7 @@ class Correction:
     lighten: float = 0.0                   # g off each web
     point_angle: float = 118.0             # deg, drill point
     depth_step: float = 0.05               # mm, the depth a machinist can set
-    tolerance_points: float = 0.5          # balance-factor points (0.5 = the contract's default)
+    bf_tolerance_percent: float = 0.5      # |deviation| allowed, balance-factor percent (0.5 = +-0.5 %)
     iso_grade: float = 6.3                 # ISO 21940-11 G-grade, mm/s
 
 
@@ -133,32 +175,34 @@ class Job:
     correction: Correction
     output: Output
     overspeed: float = 1.2                 # plug loads are also shown at overspeed * max_rpm
+    warnings: tuple[str, ...] = ()         # things the job allows but a builder should look at
 
     @property
     def tolerance_gmm(self) -> float:
-        """Allowed |ΔU| for the whole crank, g*mm, on each component."""
-        points = self.correction.tolerance_points / 100.0
-        return points * self.engine.m_reciprocating * self.engine.crank_radius
+        """Allowed magnitude |ΔU| of the whole crank's deviation from target, g*mm (a vector bound)."""
+        return self.correction.bf_tolerance_percent * self.engine.bf_unit_gmm
 
     def target_gmm(self, web: WebSpec) -> tuple[float, float]:
         """The unbalance this web must carry in its own frame, g*mm (x, y)."""
-        e = self.engine
-        total = -(e.m_rotating + e.balance_factor * e.m_reciprocating) * e.crank_radius
+        total = self.engine.webs_target_gmm()[1]
         return (0.0, web.share * total)
 
 
 # ---------------------------------------------------------------- loading
 
 _TOP = {"name", "engine", "balancer", "web", "webs", "correction", "output", "overspeed"}
-_ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt", "reciprocating", "rotating"}
+_ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt", "reciprocating", "rotating",
+           "crank_parts", "rotation"}
 _BALANCER = {"share", "offset"}
 _WEB = {"diameter", "outline", "outline_units", "thickness", "material", "density", "pin_bore",
         "main_bore", "features"}
 _WEBS = _WEB | {"name", "share"}
 _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
-               "plug_material", "lighten", "point_angle", "depth_step", "tolerance_points", "iso_grade"}
+               "plug_material", "lighten", "point_angle", "depth_step", "bf_tolerance_percent",
+               "tolerance_points", "iso_grade"}
 _OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step", "crank_gap"}
 KINDS = ("holes", "pockets", "plugs", "auto")
+ROTATIONS = ("ccw", "cw")
 
 
 def _close_match(key: str, allowed: set) -> str:
@@ -212,6 +256,24 @@ def _masses(table, where: str) -> dict:
     return out
 
 
+# names in [engine.rotating] that say "this is the crank's own metal": it belongs in [engine.crank_parts]
+_CRANK_PART_WORDS = ("crankpin", "crank_pin", "crank-pin", "pin", "pin_nut", "pin_nuts", "pin_plug", "pin_plugs")
+
+
+def _looks_like_crank_part(name: str) -> bool:
+    words = [w for w in name.lower().replace("-", "_").split("_") if w]
+    return "crankpin" in words or (bool(words) and words[0] == "pin") or name.lower() in _CRANK_PART_WORDS
+
+
+def crank_part_warnings(engine: Engine, where: str = "engine") -> tuple[str, ...]:
+    """A warning for each [engine.rotating] part whose name says it is part of the crank."""
+    return tuple(
+        f"{where}.rotating.{part}: looks like a part of the crank; move it to [{where}.crank_parts] so it "
+        f"stays off the bob weight (the webs' target is the same either way; the bob weight is "
+        f"{engine.bob_weight_g:.1f} g with it, {engine.bob_weight_g - mass:.1f} g without)"
+        for part, mass in sorted(engine.rotating.items()) if _looks_like_crank_part(part))
+
+
 def _engine(data, where="engine") -> Engine:
     t = _table(data, where, _ENGINE)
     stroke = _number(t, "stroke", where, "length", lo=0.0, lo_open=True, hi=1000.0)
@@ -222,6 +284,10 @@ def _engine(data, where="engine") -> Engine:
         raise BadInput(f"{where}.reciprocating: missing; list the weighed reciprocating parts in g")
     if "rotating" not in t:
         raise BadInput(f"{where}.rotating: missing; list the weighed rotating parts in g")
+    rotation = t.get("rotation", "ccw")
+    if rotation not in ROTATIONS:
+        raise BadInput(f"{where}.rotation: must be 'ccw' or 'cw' (as seen from web a's outer face), got {rotation!r}")
+    crank_parts = t.get("crank_parts", {})
     return Engine(
         stroke=stroke,
         rod_length=rod,
@@ -230,6 +296,8 @@ def _engine(data, where="engine") -> Engine:
         cylinder_tilt=_number(t, "cylinder_tilt", where, "angle", default=0.0, lo=-180.0, hi=180.0),
         reciprocating=_masses(t["reciprocating"], f"{where}.reciprocating"),
         rotating=_masses(t["rotating"], f"{where}.rotating"),
+        crank_parts=_masses(crank_parts, f"{where}.crank_parts") if crank_parts != {} else {},
+        rotation=rotation,
     )
 
 
@@ -251,7 +319,8 @@ def _resolve_material(t: dict, where: str) -> Material:
     return material(t.get("material", "steel"), f"{where}.material")
 
 
-def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Path) -> WebSpec:
+def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Path,
+         plug_material: Material | None) -> WebSpec:
     from .features import feature_from_table
 
     has_d, has_o = "diameter" in t, "outline" in t
@@ -282,19 +351,20 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
     raw = t.get("features", [])
     if not isinstance(raw, list):
         raise BadInput(f"{where}.features: must be a list of feature tables")
-    features = tuple(feature_from_table(f, where=f"{where}.features[{i}]", thickness=thickness)
+    features = tuple(feature_from_table(f, where=f"{where}.features[{i}]", thickness=thickness,
+                                        plug_material=plug_material)
                      for i, f in enumerate(raw))
     return WebSpec(name=name, thickness=thickness, material=_resolve_material(t, where), pin_bore=pin_bore,
                    main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units,
                    features=features, share=share)
 
 
-def _webs(data: dict, engine: Engine, base: Path) -> tuple[WebSpec, ...]:
+def _webs(data: dict, engine: Engine, base: Path, plug_material: Material | None = None) -> tuple[WebSpec, ...]:
     defaults = _table(data.get("web", {}), "web", _WEB)
     if "webs" not in data:
         if "web" not in data:
             raise BadInput("web: missing; describe the webs in [web] (both alike) or [[webs]] (one by one)")
-        return tuple(_web(defaults, "web", n, 0.5, engine, base) for n in ("a", "b"))
+        return tuple(_web(defaults, "web", n, 0.5, engine, base, plug_material) for n in ("a", "b"))
     listed = data["webs"]
     if not isinstance(listed, list) or len(listed) != 2:
         raise BadInput("webs: [[webs]] must list exactly two webs (a pressed-up crank has two)")
@@ -318,7 +388,7 @@ def _webs(data: dict, engine: Engine, base: Path) -> tuple[WebSpec, ...]:
         if "material" in t and "density" not in t:
             merged.pop("density", None)
         share = _number(t, "share", where, "dimensionless", default=0.5, lo=0.0, hi=1.0)
-        webs.append(_web(merged, where, name, share, engine, base))
+        webs.append(_web(merged, where, name, share, engine, base, plug_material))
     total = sum(w.share for w in webs)
     if abs(total - 1.0) > 1e-9:
         raise BadInput(f"webs: the shares must add up to 1, they add up to {total:g}")
@@ -378,9 +448,17 @@ def _correction(data) -> Correction:
         lighten=_number(t, "lighten", w, "mass", default=0.0, lo=0.0),
         point_angle=_number(t, "point_angle", w, "angle", default=118.0, lo=60.0, hi=180.0),
         depth_step=_number(t, "depth_step", w, "length", default=0.05, lo=0.001, hi=1.0),
-        tolerance_points=_number(t, "tolerance_points", w, "dimensionless", default=0.5, lo=0.0, lo_open=True, hi=0.5),
+        bf_tolerance_percent=_bf_tolerance(t),
         iso_grade=_number(t, "iso_grade", w, "dimensionless", default=6.3, lo=0.0, lo_open=True, hi=4000.0),
     )
+
+
+def _bf_tolerance(t: dict) -> float:
+    """`bf_tolerance_percent`, or its earlier spelling `tolerance_points` (the same number)."""
+    if "bf_tolerance_percent" in t and "tolerance_points" in t:
+        raise BadInput("correction: give 'bf_tolerance_percent' or its old spelling 'tolerance_points', not both")
+    key = "tolerance_points" if "tolerance_points" in t else "bf_tolerance_percent"
+    return _number(t, key, "correction", "dimensionless", default=0.5, lo=0.0, lo_open=True, hi=100.0)
 
 
 def _output(data) -> Output:
@@ -408,15 +486,17 @@ def from_dict(data: dict, *, path: Path | None = None) -> Job:
     name = data.get("name", path.stem if path else "job")
     if not isinstance(name, str):
         raise BadInput(f"name: must be text, got {name!r}")
+    correction = _correction(data.get("correction", {}))
     return Job(
         name=name,
         path=path,
         engine=engine,
         balancer=_balancer(data["balancer"]) if "balancer" in data else None,
-        webs=_webs(data, engine, base),
-        correction=_correction(data.get("correction", {})),
+        webs=_webs(data, engine, base, correction.plug_material),
+        correction=correction,
         output=_output(data.get("output", {})),
         overspeed=_number(data, "overspeed", "", "dimensionless", default=1.2, lo=1.0, hi=3.0),
+        warnings=crank_part_warnings(engine),
     )
 
 

@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 
 from . import __version__
-from .errors import BadInput
+from .errors import BadInput, warn_all
 from .features import feature_from_table, feature_massprops, feature_to_table, Plug, plug_density_of
 from .massprops import MassProps
 from .output import check_target, staged, write_files
@@ -105,8 +105,8 @@ def plan_webs(job, *, existing=None, targets=None, tolerances=None, method=None,
             if twin is not None:
                 plan = WebPlan(web.name, twin.plan.method, twin.plan.features, twin.plan.before,
                                twin.plan.predicted, twin.plan.target, twin.plan.tolerance,
-                               twin.plan.why + f" (web {web.name} is the same web: the same layout, so the crank "
-                               "gains no couple)", twin.plan.binding, twin.plan.considered)
+                               twin.plan.why + f" (web {web.name} is the same web with the same layout; see the "
+                               "crank's couple for what the pair leaves)", twin.plan.binding, twin.plan.considered)
             else:
                 plan = plan_web(name=web.name, section=section, existing=feats, target=target, tolerance=tol,
                                 method=method or c.kind, limits=limits, plug_material=c.plug_material,
@@ -126,38 +126,138 @@ def in_crank_frame(props: MassProps, index: int, *, gap: float) -> MassProps:
     return props.transformed(rotation=np.diag([-1.0, 1.0, -1.0]), offset=(0.0, 0.0, -gap))
 
 
-def crank_figures(job, webs: list[WebWork], props: list[MassProps]) -> dict:
-    e = job.engine
+COUPLE_WARN_SHARE = 0.5   # a couple is flagged when its plane unbalance passes this share of the tolerance
+
+
+def _web_levers(placed: list[MassProps], z_mid: float) -> list[float]:
+    """Each web's lever arm from the rod's plane: its couple over its unbalance along Y, mm."""
+    out = []
+    for p in placed:
+        uy = float(p.unbalance[1])
+        cy = float(p.product_zx_zy[1] - z_mid * p.first_moment[1])
+        out.append(abs(cy / uy) if abs(uy) > 1e-9 else 0.0)
+    return out
+
+
+def couple_figures(job, props: list[MassProps]) -> dict:
+    """The crank's couple (moment unbalance) from both webs' products of inertia.
+
+    The webs are placed as in crank.step (web b turned 180 deg about Y, `crank_gap` mm from web a);
+    the rod, the bob weight and the crank's parts at the pin act in the rod's plane (mid-gap), so
+    they add no couple about it.  Identical webs do not cancel a couple when their features lie off
+    the Y axis or on one face: turned about Y, the x-z product keeps its sign.
+    """
     gap = job.output.crank_gap
     placed = [in_crank_frame(p, i, gap=gap) for i, p in enumerate(props)]
     total = sum(placed, MassProps.zero())
-    u = total.unbalance
     z_mid = -0.5 * gap
     couple = total.product_zx_zy - z_mid * total.first_moment[:2]
-    bf = (-u[1] / e.crank_radius - e.m_rotating) / e.m_reciprocating
-    bob = e.m_rotating + e.balance_factor * e.m_reciprocating
-    rotor_kg = (sum(p.mass for p in props) + bob) / 1000.0
-    omega = e.omega
-    u_per = 1000.0 * job.correction.iso_grade * rotor_kg / omega
-    target_total = np.array([0.0, -(e.m_rotating + e.balance_factor * e.m_reciprocating) * e.crank_radius])
+    plane_distance = gap + 0.5 * sum(w.thickness for w in job.webs)
+    plane_unbalance = float(np.hypot(*couple)) / plane_distance
+    limit = COUPLE_WARN_SHARE * job.tolerance_gmm
+    levers = _web_levers(placed, z_mid)
+    out = {
+        "couple_gmm2": _vec(couple),
+        "couple_note": f"about the rod's plane, with the webs' inner faces {gap:g} mm apart (crank.step's placing)",
+        "plane_distance_mm": _num(plane_distance),
+        "plane_unbalance_gmm": _num(plane_unbalance),
+        "plane_unbalance_note": "the couple as the pair of opposite unbalances it equals in the two webs' "
+                                "mid-planes; a static balance does not show it, a two-plane (dynamic) one does",
+        "warn_above_gmm": _num(limit),
+        "levers_mm": [_num(v) for v in levers],
+        "warnings": [],
+    }
+    if plane_unbalance > limit:
+        out["warnings"].append(
+            f"the crank keeps a couple of {np.hypot(*couple):.0f} g*mm^2, i.e. +-{plane_unbalance:.1f} g*mm in the "
+            f"webs' planes, {plane_distance:g} mm apart: more than {COUPLE_WARN_SHARE:.0%} of the "
+            f"{job.tolerance_gmm:.1f} g*mm tolerance; a dynamic balance will show it")
+    a, b = job.webs
+    unequal = abs(a.share - b.share) > 1e-9 or abs(a.thickness - b.thickness) > 1e-9
+    if unequal and sum(levers) > 0:
+        free_a = levers[1] / (levers[0] + levers[1])
+        out["couple_free_shares"] = {a.name: _num(free_a), b.name: _num(1.0 - free_a)}
+        out["warnings"].append(
+            f"the webs differ (shares {a.share:g}/{b.share:g}, thicknesses {a.thickness:g}/{b.thickness:g} mm): "
+            f"their unbalances act {levers[0]:.1f} and {levers[1]:.1f} mm from the rod's plane, so the split "
+            f"that leaves no couple is {a.name} {free_a:.3f}, {b.name} {1 - free_a:.3f}")
+    return out
+
+
+def rotor_mass_g(job, props: list[MassProps]) -> float:
+    """The rotor as spun on a balancing machine: both webs, the crank's parts at the pin, the bob weight."""
+    return sum(p.mass for p in props) + job.engine.m_crank_parts + job.engine.bob_weight_g
+
+
+def crank_figures(job, webs: list[WebWork], props: list[MassProps]) -> dict:
+    from .balance import iso_permissible_unbalance
+    from .study import ISO_GRADE_NOTE, ISO_ROTOR_NOTE
+
+    e = job.engine
+    gap = job.output.crank_gap
+    placed = [in_crank_frame(p, i, gap=gap) for i, p in enumerate(props)]
+    u = sum(placed, MassProps.zero()).unbalance
+    rotor_g = rotor_mass_g(job, props)
+    u_per = iso_permissible_unbalance(grade=job.correction.iso_grade, rotor_mass_g=rotor_g, rpm=e.max_rpm)
+    target_total = np.array(e.webs_target_gmm())
+    deviation = u - target_total
     return {
         "unbalance_gmm": _vec(u),
         "target_gmm": _vec(target_total),
-        "residual_gmm": _vec(u - target_total),
-        "residual_bf_points": _num(100.0 * float(np.hypot(*(u - target_total))) / (e.m_reciprocating * e.crank_radius)),
+        "deviation_gmm": _vec(deviation),
+        "deviation_bf_percent": _num(float(np.hypot(*deviation)) / e.bf_unit_gmm),
         "balance_factor_asked": _num(e.balance_factor),
-        "balance_factor_achieved": _num(bf),
-        "couple_gmm2": _vec(couple),
-        "couple_note": f"products of inertia about the crank's mid-plane with the webs {gap:g} mm apart",
+        "balance_factor_achieved": _num(e.balance_factor_of(float(u[1]))),
+        **couple_figures(job, props),
         "tolerance_gmm": _num(job.tolerance_gmm),
-        "bob_weight_g": _num(bob),
+        "bf_tolerance_percent": _num(job.correction.bf_tolerance_percent),
+        "bob_weight_g": _num(e.bob_weight_g),
+        "bob_weight_note": "to hang on the assembled crank's pin: the rod's rotating end plus the balance factor "
+                           "times the reciprocating mass",
+        "countered_at_pin_g": _num(e.bob_weight_g + e.m_crank_parts),
+        "countered_note": "the mass the webs counter at the pin radius: the bob weight plus the crank's own parts",
         "iso_21940_11": {
             "grade_mm_s": _num(job.correction.iso_grade),
-            "rotor_mass_kg": _num(rotor_kg),
-            "rotor_mass_note": "both webs plus the bob weight, as spun on a balancing machine",
+            "rotor_mass_kg": _num(rotor_g / 1000.0),
+            "rotor_mass_note": ISO_ROTOR_NOTE,
+            "grade_note": ISO_GRADE_NOTE,
             "permissible_residual_gmm": _num(u_per),
             "formula": "U_per = 1000 * G * m / Omega (g*mm; G mm/s, m kg, Omega rad/s)",
         },
+    }
+
+
+def plug_density_range(job, webs: list[WebWork]) -> dict | None:
+    """What the ends of each plug material's density range do to the crank's unbalance.
+
+    A plug's effect is (rho_plug - rho_web) V (x, y); at another plug density only the
+    (rho_end - rho_nominal) V (x, y) part changes.  Crank frame; balance-factor percent
+    of m_reciprocating * stroke/2 (a lighter alloy under-corrects).
+    """
+    from .materials import material
+
+    e = job.engine
+    ends = {"low": np.zeros(2), "high": np.zeros(2)}
+    used = {}
+    for i, w in enumerate(webs):
+        for f in w.all_features:
+            if not isinstance(f, Plug) or f.material is None:
+                continue
+            m = material(f.material, "plug material")
+            used[m.name] = m
+            volume = math.pi * 0.25 * f.diameter ** 2 * f.length
+            x = f.x if i == 0 else -f.x
+            for end, rho in (("low", m.density_min), ("high", m.density_max)):
+                ends[end] += (rho - m.density) * 1e-3 * volume * np.array([x, f.y])
+    if not used:
+        return None
+    return {
+        "materials": {n: {"nominal_g_cm3": _num(m.density), "min_g_cm3": _num(m.density_min),
+                          "max_g_cm3": _num(m.density_max), "source": m.source} for n, m in sorted(used.items())},
+        **{f"unbalance_change_at_{end}_gmm": _vec(v) for end, v in ends.items()},
+        **{f"balance_factor_change_at_{end}_percent": _num(-v[1] / e.bf_unit_gmm) for end, v in ends.items()},
+        "note": "plugs of the lightest and the heaviest alloy the standard allows, against the nominal "
+                "density the plan used; weigh the plugs to know where yours lie",
     }
 
 
@@ -223,13 +323,18 @@ def trim_figures(job, webs: list[WebWork], exact: list[MassProps], trim: dict) -
     gap = job.output.crank_gap
     before = sum((in_crank_frame(w.plan.before, i, gap=gap) for i, w in enumerate(webs)), MassProps.zero())
     after = sum((in_crank_frame(p, i, gap=gap) for i, p in enumerate(exact)), MassProps.zero())
-    a = math.radians(trim["heavy_spot_deg"])
-    heavy = trim["measured_gmm"] * np.array([-math.sin(a), math.cos(a)])
+    heavy = heavy_spot_vector(trim["measured_gmm"], trim["crank_frame_deg"])
     change = after.unbalance - before.unbalance
     left = heavy + change
-    return {"measured_gmm": _num(trim["measured_gmm"]), "heavy_spot_deg": _num(trim["heavy_spot_deg"]),
+    per_web = {}
+    for i, (w, p) in enumerate(zip(webs, exact)):
+        d = in_crank_frame(p, i, gap=gap).unbalance - in_crank_frame(w.plan.before, i, gap=gap).unbalance
+        per_web[w.spec.name] = _vec(d)
+    return {"measured_gmm": _num(trim["measured_gmm"]), "reading_deg": _num(trim["reading_deg"]),
+            "reading_direction": trim["reading_direction"], "rotation": job.engine.rotation,
+            "heavy_spot_crank_frame_deg": _num(trim["crank_frame_deg"] % 360.0),
             "heavy_spot_gmm": _vec(heavy), "on_webs": trim["web"], "from": trim["from"],
-            "change_gmm": _vec(change), "left_gmm": _vec(left),
+            "change_gmm": _vec(change), "change_per_web_gmm": per_web, "left_gmm": _vec(left),
             "left_share_of_measured": _num(float(np.hypot(*left)) / trim["measured_gmm"])}
 
 
@@ -237,11 +342,10 @@ def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], 
                   trim: dict | None = None) -> dict:
     e = job.engine
     exact = [v["exact_massprops"] for v in verified] if verified else [w.plan.predicted for w in webs]
-    unit_bf = e.m_reciprocating * e.crank_radius / 100.0   # g*mm per balance-factor point
     doc_webs = []
     for w, v in zip(webs, verified or [None] * len(webs)):
         p = w.plan
-        resid = p.residual
+        deviation = p.residual
         entry = {
             "name": w.spec.name,
             "frame": "crank axis = Z through the origin, crankpin on +Y, counterweight on -Y; z from 0 "
@@ -263,8 +367,8 @@ def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], 
             "planned_features": _feature_rows(p.features, w.section),
             "before": _summary(p.before),
             "predicted": _summary(p.predicted),
-            "residual_gmm": _vec(resid),
-            "residual_bf_points": _num(float(np.hypot(*resid)) / unit_bf),
+            "deviation_gmm": _vec(deviation),
+            "deviation_bf_percent": _num(float(np.hypot(*deviation)) / e.bf_unit_gmm),
             "within_tolerance": p.within_tolerance,
         }
         entry["features"] = entry["existing_features"] + entry["planned_features"]
@@ -282,21 +386,29 @@ def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], 
                   "density": "g/cm^3", "force": "N", "stress": "MPa", "speed": "rpm"},
         "engine": {"stroke_mm": _num(e.stroke), "rod_length_mm": _num(e.rod_length), "max_rpm": _num(e.max_rpm),
                    "balance_factor": _num(e.balance_factor), "cylinder_tilt_deg": _num(e.cylinder_tilt),
+                   "rotation": e.rotation,
                    "m_reciprocating_g": _num(e.m_reciprocating), "m_rotating_g": _num(e.m_rotating),
+                   "m_crank_parts_g": _num(e.m_crank_parts),
                    "reciprocating_g": {k: _num(v) for k, v in sorted(e.reciprocating.items())},
-                   "rotating_g": {k: _num(v) for k, v in sorted(e.rotating.items())}},
+                   "rotating_g": {k: _num(v) for k, v in sorted(e.rotating.items())},
+                   "crank_parts_g": {k: _num(v) for k, v in sorted(e.crank_parts.items())}},
         "correction": {"kind": job.correction.kind, "drills": job.correction.drill_series,
                        "min_wall_mm": _num(job.correction.min_wall), "pin_wall_mm": _num(job.correction.pin_wall),
                        "max_depth_mm": _num(job.correction.max_depth), "through": job.correction.through,
                        "plug_material": job.correction.plug_material.name,
                        "plug_density_g_cm3": _num(job.correction.plug_material.density),
                        "lighten_g": _num(job.correction.lighten),
-                       "tolerance_bf_points": _num(job.correction.tolerance_points)},
+                       "bf_tolerance_percent": _num(job.correction.bf_tolerance_percent)},
         "webs": doc_webs,
         "crank": crank_figures(job, webs, exact),
         "safety": safety_figures(job, webs),
         "cautions": list(CAUTIONS),
     }
+    density_range = plug_density_range(job, webs)
+    if density_range is not None:
+        doc["plug_density_range"] = density_range
+    walls = [line for v in (verified or []) for line in v.get("wall_warnings", [])]
+    doc["warnings"] = list(job.warnings) + walls + doc["crank"]["warnings"]
     if trim is not None:
         doc["trim"] = trim_figures(job, webs, exact, trim)
     if study_result is not None:
@@ -384,6 +496,7 @@ def _finish(args, job, command, webs, *, with_study=True, with_shop=True, trim=N
             files.update(_shop_files(job, doc, webs, study_result))
         write_files(stage, files)
         written = sorted(p.name for p in stage.iterdir())
+    warn_all(line for line in doc["warnings"] if line not in job.warnings)
     for line in summary_lines(doc):
         print(line)
     print(f"wrote {len(written)} files to {args.out}: {', '.join(written)}")
@@ -409,24 +522,25 @@ def summary_lines(doc: dict) -> list[str]:
     lines = [f"{doc['command']}: {doc['job']}"]
     if "trim" in doc:
         t = doc["trim"]
-        lines.append(f"trim: measured {t['measured_gmm']:.1f} g*mm at {t['heavy_spot_deg']:g} deg from the pin (crank "
+        lines.append(f"trim: measured unbalance {t['measured_gmm']:.1f} g*mm, heavy spot {t['reading_deg']:g} deg from "
+                     f"the pin {t['reading_direction']} ({t['heavy_spot_crank_frame_deg']:g} deg ccw in the crank "
                      f"frame), taken off {t['on_webs']}; left after the trim {math.hypot(*t['left_gmm']):.2f} g*mm "
                      f"({100 * t['left_share_of_measured']:.2f} % of the measured)")
-        if t["on_webs"].startswith("web "):
-            cx, cy = crank["couple_gmm2"]
-            lines.append(f"  all on one web: the crank keeps a couple of {math.hypot(cx, cy):.0f} g*mm^2 "
-                         f"({cx:.0f}, {cy:.0f}) about its mid-plane; a dynamic balance shows it")
         lines.append("  (the balance factor below is against the design target; the trim answers the measurement)")
     lines += [
              f"balance factor asked {crank['balance_factor_asked']:.3f}, achieved {crank['balance_factor_achieved']:.4f} "
-             f"(residual {crank['residual_bf_points']:.3f} points, allowed {doc['correction']['tolerance_bf_points']:g})",
-             f"crank residual {math.hypot(*crank['residual_gmm']):.1f} g*mm; ISO 21940-11 G{crank['iso_21940_11']['grade_mm_s']:g} "
-             f"permits {crank['iso_21940_11']['permissible_residual_gmm']:.1f} g*mm at max_rpm"]
+             f"(deviation {crank['deviation_bf_percent']:.3f} %, allowed {crank['bf_tolerance_percent']:g} %)",
+             f"bob weight to hang on the assembled crank {crank['bob_weight_g']:.1f} g; the webs counter "
+             f"{crank['countered_at_pin_g']:.1f} g at the pin radius",
+             f"crank deviation {math.hypot(*crank['deviation_gmm']):.1f} g*mm; ISO 21940-11 G{crank['iso_21940_11']['grade_mm_s']:g} "
+             f"permits {crank['iso_21940_11']['permissible_residual_gmm']:.1f} g*mm at max_rpm",
+             f"couple {math.hypot(*crank['couple_gmm2']):.0f} g*mm^2 (+-{crank['plane_unbalance_gmm']:.1f} g*mm in the "
+             f"webs' planes)"]
     for w in doc["webs"]:
         lines.append(f"web {w['name']}: {w['method']}, {len(w['planned_features'])} new feature(s); target "
                      f"{w['target_gmm'][1]:.1f} g*mm, predicted {w['predicted']['unbalance_gmm'][1]:.1f}, "
-                     f"residual {w['residual_gmm'][0]:+.2f}, {w['residual_gmm'][1]:+.2f} g*mm (tolerance "
-                     f"{w['tolerance_gmm']:.1f})")
+                     f"deviation {w['deviation_gmm'][0]:+.2f}, {w['deviation_gmm'][1]:+.2f} g*mm (|deviation| "
+                     f"allowed {w['tolerance_gmm']:.1f})")
         if "agreement" in w:
             pe = w["agreement"]["predicted_vs_exact"]
             lines.append(f"  verified: exact B-rep vs prediction {pe['unbalance_gmm']:.3g} g*mm, mass "
@@ -452,6 +566,7 @@ def run_build(args) -> int:
 
     check_target(args.out, force=args.force)
     job = jobmod.load(args.job)
+    warn_all(job.warnings)
     webs = plan_webs(job, method="none")
     return _finish(args, job, "build", webs, with_study=False, with_shop=False)
 
@@ -461,6 +576,7 @@ def run_plan(args) -> int:
 
     check_target(args.out, force=args.force)
     job = jobmod.load(args.job)
+    warn_all(job.warnings)
     webs = plan_webs(job)
     return _finish(args, job, "plan", webs)
 
@@ -507,18 +623,31 @@ def previous_features(job, from_dir: Path) -> dict:
     return out
 
 
-def trim_request(job, *, unbalance_gmm: float, angle_deg: float, web_name: str | None):
-    """Per-web changes (web frames) that take off a heavy spot measured in the crank frame.
+def heavy_spot_vector(unbalance_gmm: float, crank_frame_deg: float) -> np.ndarray:
+    """The heavy spot as a crank-frame vector, g*mm: U (-sin A, cos A), A ccw from the pin (+Y)."""
+    a = math.radians(crank_frame_deg)
+    return unbalance_gmm * np.array([-math.sin(a), math.cos(a)])
 
-    The heavy spot at angle A (deg from the pin, counter-clockwise, crank frame) is
-    U (-sin A, cos A); the webs must change by minus that, shared or all on one web.
-    A point (x, y) of web b is (-x, y) in the crank frame, so its change is mirrored.
+
+def crank_frame_angle(reading_deg: float, *, rotation: str, against_rotation: bool = False) -> float:
+    """A balancing machine's heavy-spot angle (from the pin, in the direction of rotation unless
+    `against_rotation`) as the crank frame's counter-clockwise angle from +Y (web a seen from its
+    outer face)."""
+    with_rotation = -reading_deg if against_rotation else reading_deg
+    return with_rotation if rotation == "ccw" else -with_rotation
+
+
+def trim_request(job, *, unbalance_gmm: float, angle_deg: float, web_name: str | None):
+    """Per-web changes (web frames) that take off a heavy spot given in the crank frame.
+
+    angle_deg : counter-clockwise from the pin in the crank frame (see `crank_frame_angle`);
+    the webs must change by minus the heavy spot, shared or all on one web.  A point (x, y)
+    of web b is (-x, y) in the crank frame, so its change is mirrored.
     """
     names = [w.name for w in job.webs]
     if web_name is not None and web_name not in names:
         raise BadInput(f"--web: {web_name!r} is not a web of this job; its webs are {', '.join(names)}")
-    a = math.radians(angle_deg)
-    heavy = unbalance_gmm * np.array([-math.sin(a), math.cos(a)])
+    heavy = heavy_spot_vector(unbalance_gmm, angle_deg)
     changes = {}
     for i, w in enumerate(job.webs):
         share = (1.0 if w.name == web_name else 0.0) if web_name else w.share
@@ -537,8 +666,11 @@ def run_trim(args) -> int:
     if Path(args.out).resolve() == Path(args.from_dir).resolve():
         raise BadInput("--out: must differ from --from (the earlier plan is kept as it is)")
     job = jobmod.load(args.job)
+    warn_all(job.warnings)
     unbalance = measured_unbalance(args.unbalance)
-    angle = to_internal(args.angle, "angle", "--angle")
+    reading = to_internal(args.angle, "angle", "--angle")
+    against = bool(getattr(args, "against_rotation", False))
+    angle = crank_frame_angle(reading, rotation=job.engine.rotation, against_rotation=against)
     existing = previous_features(job, Path(args.from_dir))
     changes = trim_request(job, unbalance_gmm=unbalance, angle_deg=angle, web_name=args.web)
     targets, tolerances = {}, {}
@@ -550,6 +682,8 @@ def run_trim(args) -> int:
         # 1 % of the measured residual per web keeps the pair within 2 % of it
         tolerances[web.name] = max(0.01 * unbalance * share, 0.05)
     webs = plan_webs(job, existing=existing, targets=targets, tolerances=tolerances, lighten=0.0)
-    trim = {"measured_gmm": unbalance, "heavy_spot_deg": angle, "from": str(args.from_dir),
+    trim = {"measured_gmm": unbalance, "reading_deg": reading, "crank_frame_deg": angle,
+            "reading_direction": "against the rotation" if against else "in the direction of rotation",
+            "from": str(args.from_dir),
             "web": f"web {args.web}" if args.web else "both webs by their shares"}
     return _finish(args, job, "trim", webs, trim=trim)

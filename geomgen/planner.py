@@ -71,7 +71,7 @@ class WebPlan:
     before: MassProps                 # web with its existing features
     predicted: MassProps              # web after the new features
     target: tuple[float, float]       # g*mm
-    tolerance: float                  # g*mm per component
+    tolerance: float                  # g*mm, the allowed magnitude |deviation| (a vector bound)
     why: str
     binding: str
     considered: tuple = field(default=())   # one line per method tried
@@ -82,7 +82,12 @@ class WebPlan:
 
     @property
     def within_tolerance(self) -> bool:
-        return bool(np.all(np.abs(self.residual) <= self.tolerance + 1e-9))
+        return _within(self.residual, self.tolerance)
+
+
+def _within(deviation, tolerance: float) -> bool:
+    """Unbalance is a vector (ISO 21940-11): the deviation's magnitude is held, not each component."""
+    return float(np.hypot(*np.asarray(deviation, dtype=float)[:2])) <= tolerance + 1e-9
 
 
 # ------------------------------------------------------------------ region
@@ -388,7 +393,7 @@ def _tune_row(*, kind, row, axis, u, need_vec, thickness, web_density, plug_dens
                                   thickness=thickness, limits=limits, count_groups=n_groups,
                                   plug_material=plug_material)
             effect = _total(feats, thickness=thickness, web_density=web_density, plug_density=plug_density)
-            if np.all(np.abs(effect.unbalance - need_vec) <= tolerance):
+            if _within(effect.unbalance - need_vec, tolerance):
                 return feats
             continue
         if not has_blind:
@@ -402,7 +407,7 @@ def _tune_row(*, kind, row, axis, u, need_vec, thickness, web_density, plug_dens
         depth = _solve_depth(effect, need_along, u, lo, hi, limits.depth_step)
         if depth is None:
             continue
-        if np.all(np.abs(effect(depth).unbalance - need_vec) <= tolerance):
+        if _within(effect(depth).unbalance - need_vec, tolerance):
             return _row_features(row, axis, kind=kind, depth=depth, through_groups=through_groups,
                                  thickness=thickness, limits=limits, count_groups=n_groups,
                                  plug_material=plug_material)
@@ -476,7 +481,7 @@ def _plan_pocket(*, region, r_top, axis, need_vec, thickness, web_density, limit
             continue
         pocket = _kidney(r_in, r_out, axis, span, depth, corner)
         fx = effect(pocket)
-        if np.all(np.abs(fx.unbalance - need_vec) <= tolerance):
+        if _within(fx.unbalance - need_vec, tolerance):
             results.append((-fx.mass, abs(fx.inertia_z), pocket))
     if not results:
         return None, reach

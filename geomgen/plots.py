@@ -72,7 +72,7 @@ def study_figure(result: dict):
                   label=f"smallest peak: BF {best:g}, {best_peak:.0f} N")
     sweep_ax.set_xlabel("balance factor (share of reciprocating mass), -")
     sweep_ax.set_ylabel("peak force over one revolution, N")
-    sweep_ax.set_xlim(0.0, 1.0)
+    sweep_ax.set_xlim(0.0, max(row["balance_factor"] for row in result["sweep"]))
     sweep_ax.set_ylim(bottom=0.0)
     sweep_ax.grid(True, lw=0.4, alpha=0.6)
     fig.text(0.765, 0.835, f"Balance-factor sweep at {inp['max_rpm']:g} rpm",

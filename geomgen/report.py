@@ -161,43 +161,79 @@ def _figure(k: str, v: str, cls: str = "") -> str:
 
 
 def _summary(doc: dict) -> str:
-    c, corr = doc["crank"], doc["correction"]
+    c = doc["crank"]
     iso = c["iso_21940_11"]
-    resid = math.hypot(*c["residual_gmm"])
-    within = c["residual_bf_points"] <= corr["tolerance_bf_points"]
-    iso_ok = resid <= iso["permissible_residual_gmm"]
+    deviation = math.hypot(*c["deviation_gmm"])
+    within = c["deviation_bf_percent"] <= c["bf_tolerance_percent"] + 1e-9
+    iso_ok = deviation <= iso["permissible_residual_gmm"]
     return "".join([
         '<div class="figures">',
         _figure("balance factor asked", _n(c["balance_factor_asked"], 3)),
         _figure("balance factor achieved (exact solids)", _n(c["balance_factor_achieved"], 4)),
-        _figure("crank residual unbalance", f"{_n(resid, 1)} g·mm"),
-        _figure("residual in balance-factor points",
-                f"{_n(c['residual_bf_points'], 3)} of ±{_n(corr['tolerance_bf_points'], 2)}",
+        _figure("crank deviation from target (magnitude)", f"{_n(deviation, 1)} g·mm"),
+        _figure("deviation in balance-factor percent",
+                f"{_n(c['deviation_bf_percent'], 3)} % of ±{_n(c['bf_tolerance_percent'], 2)} %",
                 "ok" if within else "bad"),
         _figure(f"ISO 21940-11 G{_n(iso['grade_mm_s'], 1)} permissible residual",
                 f"{_n(iso['permissible_residual_gmm'], 1)} g·mm", "ok" if iso_ok else "bad"),
-        _figure("bob weight", f"{_n(c['bob_weight_g'], 1)} g"),
+        _figure("bob weight to hang on the assembled crank", f"{_n(c['bob_weight_g'], 1)} g"),
+        _figure("mass the webs counter at the pin radius", f"{_n(c['countered_at_pin_g'], 1)} g"),
+        _figure("couple, as unbalance in each web's plane", f"±{_n(c['plane_unbalance_gmm'], 1)} g·mm",
+                "ok" if c["plane_unbalance_gmm"] <= c["warn_above_gmm"] else "bad"),
         "</div>",
-        f'<p class="note">The crank residual is the two webs summed in the crank frame (web a\'s), from the exact '
-        f'solids, against the target {_vec(c["target_gmm"])} g·mm. ISO 21940-11: {_e(iso["formula"])}, with '
-        f'm = {_n(iso["rotor_mass_kg"], 3)} kg ({_e(iso["rotor_mass_note"])}) at {_n(doc["engine"]["max_rpm"], 0)} rpm. '
-        f'Couple left by the webs: {_vec(c["couple_gmm2"], 0)} g·mm² ({_e(c["couple_note"])}).</p>',
+        f'<p class="note">The deviation is the two webs summed in the crank frame (web a\'s), from the exact '
+        f'solids, against the target {_vec(c["target_gmm"])} g·mm, held as a vector magnitude (ISO 21940-11 treats '
+        f'unbalance as a vector). Bob weight: {_e(c["bob_weight_note"])}; {_e(c["countered_note"])}. '
+        f'ISO 21940-11: {_e(iso["formula"])}, with m = {_n(iso["rotor_mass_kg"], 3)} kg ({_e(iso["rotor_mass_note"])}) '
+        f'at {_n(doc["engine"]["max_rpm"], 0)} rpm; {_e(iso["grade_note"])}.</p>',
     ])
+
+
+def _warnings(doc: dict) -> str:
+    lines = doc.get("warnings", [])
+    if not lines:
+        return ""
+    items = "".join(f"<li>{_e(w)}</li>" for w in lines)
+    return f'<div class="caution" role="note"><strong>Look at these</strong><ul>{items}</ul></div>'
+
+
+def _couple(doc: dict) -> str:
+    c = doc["crank"]
+    rows = [["couple about the rod's plane x, y (g·mm²)", _vec(c["couple_gmm2"], 0)],
+            ["distance between the webs' mid-planes (mm)", _n(c["plane_distance_mm"], 1)],
+            ["as opposite unbalances in those planes (g·mm)", f"±{_n(c['plane_unbalance_gmm'], 1)}"],
+            ["flagged above (g·mm)", _n(c["warn_above_gmm"], 1)],
+            ["webs' lever arms from the rod's plane (mm)", ", ".join(_n(v, 1) for v in c["levers_mm"])]]
+    if "couple_free_shares" in c:
+        rows.append(["split of the target that leaves no couple",
+                     ", ".join(f"{_e(k)} {_n(v, 3)}" for k, v in c["couple_free_shares"].items())])
+    return (_table(["couple (moment unbalance)", "value"], rows)
+            + f'<p class="note">{_e(c["couple_note"])}. {_e(c["plane_unbalance_note"])}. Identical webs do not '
+              "cancel a couple when their features lie off the Y axis or on one face only: turned 180° about Y, "
+              "web b's x–z product keeps its sign.</p>")
 
 
 def _engine(doc: dict) -> str:
     e = doc["engine"]
+    c = doc["crank"]
     rows = [["stroke", f"{_n(e['stroke_mm'], 2)} mm"], ["rod length (centres)", f"{_n(e['rod_length_mm'], 2)} mm"],
             ["max speed", f"{_n(e['max_rpm'], 0)} rpm"], ["cylinder tilt", f"{_n(e['cylinder_tilt_deg'], 1)} deg"],
+            ["rotation (seen from web a's outer face)",
+             "counter-clockwise" if e.get("rotation", "ccw") == "ccw" else "clockwise"],
             ["balance factor asked", _n(e["balance_factor"], 3)]]
     masses = [[f"reciprocating: {_e(k)}", f"{_n(v, 1)} g"] for k, v in e["reciprocating_g"].items()]
     masses.append(["<b>reciprocating, total</b>", f"<b>{_n(e['m_reciprocating_g'], 1)} g</b>"])
-    masses += [[f"rotating: {_e(k)}", f"{_n(v, 1)} g"] for k, v in e["rotating_g"].items()]
-    masses.append(["<b>rotating, total</b> (at the crankpin radius)", f"<b>{_n(e['m_rotating_g'], 1)} g</b>"])
-    masses.append(["bob weight = rotating + balance factor × reciprocating",
-                   f"<b>{_n(doc['crank']['bob_weight_g'], 1)} g</b>"])
+    masses += [[f"rod's rotating end: {_e(k)}", f"{_n(v, 1)} g"] for k, v in e["rotating_g"].items()]
+    masses.append(["<b>rod's rotating end, total</b> (at the pin radius)", f"<b>{_n(e['m_rotating_g'], 1)} g</b>"])
+    masses += [[f"crank's own part: {_e(k)}", f"{_n(v, 1)} g"] for k, v in e.get("crank_parts_g", {}).items()]
+    masses.append(["<b>crank's own parts, total</b> (at the pin radius, never on the bob)",
+                   f"<b>{_n(e.get('m_crank_parts_g', 0.0), 1)} g</b>"])
+    masses.append(["bob weight to hang on the assembled crank = rod's rotating end + balance factor × reciprocating",
+                   f"<b>{_n(c['bob_weight_g'], 1)} g</b>"])
+    masses.append(["mass the webs counter at the pin radius = bob weight + crank's own parts",
+                   f"<b>{_n(c['countered_at_pin_g'], 1)} g</b>"])
     return ('<div class="pair"><div>' + _table(["engine", "value"], rows) + "</div><div>"
-            + _table(["weighed parts", "mass"], masses) + "</div></div>")
+            + _table(["weighed parts", "mass"], masses, left=1) + "</div></div>")
 
 
 def _balance_table(doc: dict) -> str:
@@ -206,11 +242,69 @@ def _balance_table(doc: dict) -> str:
         achieved = w.get("exact", w["predicted"])["unbalance_gmm"]
         ok = w["within_tolerance"]
         rows.append([_e(w["name"]), _e(w["method"]), _vec(w["target_gmm"]), _vec(achieved),
-                     f"±{_n(w['tolerance_gmm'], 1)}", _vec(w["residual_gmm"], 2), _n(w["residual_bf_points"], 3),
+                     f"{_n(w['tolerance_gmm'], 1)}", _vec(w["deviation_gmm"], 2), _n(w["deviation_bf_percent"], 3),
                      f'<span class="{"ok" if ok else "bad"}">{"yes" if ok else "NO"}</span>'])
     return _table(["web", "method", "target x, y (g·mm)", "achieved x, y, exact solid (g·mm)",
-                   "tolerance per component (g·mm)", "residual x, y (g·mm)", "residual (BF points)",
+                   "allowed |deviation| (g·mm)", "deviation x, y (g·mm)", "|deviation| (BF %)",
                    "within tolerance"], rows, left=2)
+
+
+def _plug_range(doc: dict) -> str:
+    r = doc.get("plug_density_range")
+    if r is None:
+        return ""
+    rows = [[_e(n), _n(m["min_g_cm3"], 2), _n(m["nominal_g_cm3"], 3), _n(m["max_g_cm3"], 2), _e(m["source"])]
+            for n, m in r["materials"].items()]
+    effect = [["lightest alloy allowed", _vec(r["unbalance_change_at_low_gmm"], 1),
+               f"{r['balance_factor_change_at_low_percent']:+.2f}"],
+              ["heaviest alloy allowed", _vec(r["unbalance_change_at_high_gmm"], 1),
+               f"{r['balance_factor_change_at_high_percent']:+.2f}"]]
+    return ("<h3>Plug density: the ends of the standard's range</h3>"
+            + _table(["plug material", "min (g/cm³)", "planned (g/cm³)", "max (g/cm³)", "source"], rows, left=1)
+            + _table(["all plugs of", "crank unbalance change x, y (g·mm)", "balance factor change (%)"],
+                     effect, left=1)
+            + f'<p class="note">{_e(r["note"])}.</p>')
+
+
+def _study_figures(study: dict | None) -> str:
+    if study is None:
+        return ""
+    from .study import peak_line
+
+    t = study["inertia_torque"]
+    rows = [["peak residual force", _e(peak_line(study).split(": ", 1)[1])],
+            ["at TDC / at BDC", f"{_n(study['tdc']['resultant_N'], 0)} N / {_n(study['bdc']['resultant_N'], 0)} N"],
+            ["reciprocating inertia torque about the crank axis",
+             f"peak {_n(t['peak_Nm'], 1)} N·m at {_n(t['at_crank_angle_deg'], 1)}° after TDC; "
+             + ", ".join(f"order {k}: {_n(v, 1)} N·m" for k, v in t["harmonics_Nm"].items())]]
+    if study["inputs"].get("balancer") is not None:
+        at = study.get("balancer_couple_at_crank_angle_deg")
+        rows.append(["balancer shaft's rocking couple about the crank axis",
+                     f"peak {_n(study['balancer_couple_peak_Nm'], 1)} N·m"
+                     + (f" at {_n(at, 1)}° after TDC" if at is not None else "")])
+    return (_table(["what the study knows", "value"], rows, left=2)
+            + f'<p class="note">{_e(t["note"])}. Crank angles are measured from TDC in the direction of rotation; '
+              "force directions from +Y, counter-clockwise in the crank frame (web a seen from its outer face).</p>")
+
+
+def _trim(doc: dict) -> str:
+    t = doc.get("trim")
+    if t is None:
+        return ""
+    rows = [["measured unbalance (assembled crank, with its bob weight)", f"{_n(t['measured_gmm'], 1)} g·mm"],
+            ["heavy spot as read", f"{_n(t['reading_deg'], 1)}° from the crankpin, {_e(t['reading_direction'])}"],
+            ["crank's rotation (seen from web a's outer face)",
+             "counter-clockwise" if t["rotation"] == "ccw" else "clockwise"],
+            ["heavy spot in the crank frame", f"{_n(t['heavy_spot_crank_frame_deg'], 1)}° from +Y, counter-clockwise; "
+                                             f"{_vec(t['heavy_spot_gmm'], 1)} g·mm"],
+            ["taken off", _e(t["on_webs"])]]
+    rows += [[f"change on web {_e(k)} (crank frame)", f"{_vec(v, 1)} g·mm"] for k, v in t["change_per_web_gmm"].items()]
+    rows += [["change, both webs (crank frame)", f"{_vec(t['change_gmm'], 1)} g·mm"],
+             ["left of the measured unbalance", f"{_vec(t['left_gmm'], 2)} g·mm "
+                                                f"({_n(100 * t['left_share_of_measured'], 2)} % of it)"]]
+    return ("<h2>Trim: the measured heavy spot and what is taken off</h2>" + _table(["trim", "value"], rows, left=2)
+            + '<p class="note">Spin the crank again with the same bob weight after the trim; what is left is the '
+              "prediction, the machine has the last word.</p>")
 
 
 def _feature_rows(w, entry: dict) -> list[list[str]]:
@@ -218,7 +312,7 @@ def _feature_rows(w, entry: dict) -> list[list[str]]:
     rows = []
     for (label, f), t in zip(feature_numbers(w, w.all_features), tables):
         eff = t["effect"]
-        status = "on the web" if label.startswith("E") else "to cut"
+        status = "existing" if label.startswith("E") else "new"
         if isinstance(f, Pocket):
             where = f"r {_n(f.r_inner, 2)}–{_n(f.r_outer, 2)} mm, {_n(f.angle_start, 1)}° to " \
                     f"{_n(f.angle_start + f.span_deg, 1)}°, corners r {_n(f.corner_radius, 2)}"
@@ -347,18 +441,20 @@ def report_html(*, job, doc: dict, webs, study: dict | None) -> bytes:
     job : geomgen.job.Job;  doc : the plan.json dict;  webs : pipeline.WebWork list;
     study : the study.study() result (its figure), or None.
     """
-    title = f"Crank web correction: {doc['job']}"
+    title = (f"Crank web trim: {doc['job']}" if doc["command"] == "trim"
+             else f"Crank web correction: {doc['job']}")
     blocks = "".join(_web_block(w, entry) for w, entry in zip(webs, doc["webs"]))
     body = [
         f"<h1>{_e(title)}</h1>",
         f'<p class="sub">geomgen {_e(doc.get("geomgen_version", ""))}, command “{_e(doc["command"])}”. '
         "Lengths in mm, masses in g, unbalance in g·mm. Web frame: crank axis at the centre, crankpin on +Y, "
         "counterweight on −Y, seen from the outer face; angles from +Y, counter-clockwise.</p>",
-        _cautions(doc),
+        _cautions(doc), _warnings(doc), _trim(doc),
         "<h2>Result at a glance</h2>", _summary(doc),
         "<h2>Engine and weighed masses</h2>", _engine(doc),
         "<h2>Balance of each web</h2>", _balance_table(doc),
-        "<h2>Shaking force and balance-factor sweep</h2>", _study(study),
+        "<h2>Couple</h2>", _couple(doc), _plug_range(doc),
+        "<h2>Shaking force and balance-factor sweep</h2>", _study(study), _study_figures(study),
         "<h2>The webs before and after</h2>", blocks,
         "<h2>Verification: prediction, exact solid and mesh</h2>", _verification(doc),
         "<h2>Loads at speed</h2>", _safety(doc),
