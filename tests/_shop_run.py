@@ -26,6 +26,7 @@ piston = 250.0
 rod_small_end = 80.0
 [engine.rotating]
 rod_big_end = 200.0
+[engine.crank_parts]
 crankpin = 140.0
 [web]
 diameter = 130.0

@@ -17,9 +17,10 @@ or the fixtures `job_path` (a valid job file in tmp_path) and `make_job` (the sa
 
 The minimal job is the design.md example (invented demo numbers): stroke 64 mm,
 rod 110 mm, 11000 rpm, balance factor 0.55, reciprocating 250 + 80 = 330 g,
-rotating 200 + 140 = 340 g, two alike 130 mm steel webs 18 mm thick with a 28 mm
-pin bore.  Worked by hand from the design.md contract:
-    target per web = -(340 + 0.55 * 330) * 64/2 * 0.5 = -521.5 * 32 / 2 = -8344 g*mm (on y)
+the rod's rotating end 200 g, the crankpin 140 g (a crank part), two alike 130 mm steel webs 18 mm thick with a 28 mm
+pin bore.  Worked by hand from the README's definitions:
+    bob weight = 200 + 0.55 * 330 = 381.5 g (the crankpin is on the crank, not on the bob)
+    target per web = -(200 + 140 + 0.55 * 330) * 64/2 * 0.5 = -521.5 * 32 / 2 = -8344 g*mm (on y)
     default tolerance (whole crank) = 0.5/100 * 330 * 32 = 52.8 g*mm
 
 `toml_dumps` writes the subset of TOML a job uses (tables, numbers including
@@ -48,7 +49,8 @@ _MINIMAL = {
         "max_rpm": 11000,
         "balance_factor": 0.55,
         "reciprocating": {"piston": 250.0, "rod_small_end": 80.0},
-        "rotating": {"rod_big_end": 200.0, "crankpin": 140.0},
+        "rotating": {"rod_big_end": 200.0},
+        "crank_parts": {"crankpin": 140.0},
     },
     "web": {
         "diameter": 130.0,

@@ -28,17 +28,20 @@ WALL_SLACK = 1e-3
 
 # ------------------------------------------------------------------ the contract, by hand
 def contract_target(job: dict, share: float = 0.5) -> np.ndarray:
-    """(x, y) g*mm a web must carry: -(m_rot + BF m_rec) stroke/2 share on Y (design.md "Target")."""
+    """(x, y) g*mm a web must carry: -(m_rot + m_crank_parts + BF m_rec) stroke/2 share on Y (the README's
+    "Target": the webs counter the bob weight and the crank's own parts at the pin)."""
     e = job["engine"]
     m_rec = sum(e["reciprocating"].values())
-    m_rot = sum(e["rotating"].values())
+    m_rot = sum(e["rotating"].values()) + sum(e.get("crank_parts", {}).values())
     return np.array([0.0, -(m_rot + e["balance_factor"] * m_rec) * 0.5 * e["stroke"] * share])
 
 
 def contract_tolerance(job: dict, share: float = 0.5) -> float:
-    """g*mm per component per web: tolerance_points/100 m_rec stroke/2 share (design.md "Default tolerance")."""
+    """g*mm, the allowed |deviation| of one web: bf_tolerance_percent/100 m_rec stroke/2 share (the README's
+    "Tolerance": a vector magnitude, as ISO 21940-11 treats unbalance)."""
     e = job["engine"]
-    points = job.get("correction", {}).get("tolerance_points", 0.5)
+    corr = job.get("correction", {})
+    points = corr.get("bf_tolerance_percent", corr.get("tolerance_points", 0.5))
     return points / 100.0 * sum(e["reciprocating"].values()) * 0.5 * e["stroke"] * share
 
 

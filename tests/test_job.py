@@ -57,7 +57,9 @@ def test_plain_numbers_load(job_path):
     assert (e.stroke, e.rod_length, e.max_rpm, e.balance_factor) == (64.0, 110.0, 11000.0, 0.55)
     assert e.crank_radius == 32.0
     assert e.m_reciprocating == 330.0                   # 250 + 80
-    assert e.m_rotating == 340.0                        # 200 + 140
+    assert e.m_rotating == 200.0                        # the rod's big end alone
+    assert e.m_crank_parts == 140.0                     # the crankpin
+    assert e.bob_weight_g == pytest.approx(381.5)       # 200 + 0.55 * 330, worked by hand
     assert e.omega == pytest.approx(11000 * 2 * math.pi / 60, rel=1e-15)  # 1151.917 rad/s
     assert e.cylinder_tilt == 0.0
     assert job.name == "demo" and job.balancer is None
@@ -79,7 +81,7 @@ def test_unit_strings_load(tmp_path):
         "engine.rod_length": "4.33 in",                 # 109.982 mm
         "engine.max_rpm": "4200 rpm",
         "engine.reciprocating.piston": "9 oz",          # 9 * 28.349523125 = 255.145708125 g
-        "engine.rotating.crankpin": "0.31 lb",          # 0.31 * 453.59237 = 140.6136347 g
+        "engine.crank_parts.crankpin": "0.31 lb",       # 0.31 * 453.59237 = 140.6136347 g
         "web.material": DROP,
         "web.density": "0.284 lb/in^3",                 # 0.284 * 453.59237 / 2.54^3 = 7.861093 g/cm^3
         "web.thickness": "0.75 in",                     # 19.05 mm
@@ -93,7 +95,7 @@ def test_unit_strings_load(tmp_path):
     assert e.rod_length == pytest.approx(109.982, rel=1e-12)
     assert e.max_rpm == pytest.approx(4200.0, rel=1e-12)
     assert e.reciprocating["piston"] == pytest.approx(255.145708125, rel=1e-12)
-    assert e.rotating["crankpin"] == pytest.approx(140.6136347, rel=1e-9)
+    assert e.crank_parts["crankpin"] == pytest.approx(140.6136347, rel=1e-9)
     web = job.webs[0]
     assert web.density == pytest.approx(7.861093, rel=1e-6)
     assert web.thickness == pytest.approx(19.05, rel=1e-12)
@@ -212,7 +214,7 @@ def test_nan_and_inf_from_toml(tmp_path, key, value):
     bad(tmp_path, {key: value}, key, "finite")
 
 
-@pytest.mark.parametrize("key", ["engine.stroke", "engine.reciprocating.piston", "engine.rotating.crankpin",
+@pytest.mark.parametrize("key", ["engine.stroke", "engine.reciprocating.piston", "engine.crank_parts.crankpin",
                                  "web.thickness", "web.pin_bore", "web.diameter", "engine.max_rpm"])
 @pytest.mark.parametrize("value", [0.0, -5.0])
 def test_zero_and_negative_sizes_and_masses(tmp_path, key, value):
@@ -265,8 +267,19 @@ def test_missing_required_keys(tmp_path, changes, key):
     bad(tmp_path, changes, key, "missing" if "rotating" not in key else "table of weighed parts")
 
 
-def test_tolerance_may_only_be_tighter(tmp_path):
-    bad(tmp_path, {"correction.tolerance_points": 1.0}, "correction.tolerance_points", "<= 0.5")
+def test_any_positive_tolerance_is_accepted_in_either_spelling(make_job):
+    # bf_tolerance_percent is the key; tolerance_points is its earlier spelling, the same number
+    for key in ("bf_tolerance_percent", "tolerance_points"):
+        job = jobmod.load(make_job({f"correction.{key}": 1.5}))
+        assert job.correction.bf_tolerance_percent == 1.5
+        # 1.5 % of m_recip * stroke/2 = 0.015 * 330 * 32 = 158.4 g*mm (worked by hand)
+        assert job.tolerance_gmm == pytest.approx(158.4)
+
+
+def test_tolerance_must_be_positive_and_given_once(tmp_path):
+    bad(tmp_path, {"correction.bf_tolerance_percent": 0.0}, "correction.bf_tolerance_percent", "> 0")
+    bad(tmp_path, {"correction.bf_tolerance_percent": 0.5, "correction.tolerance_points": 0.5},
+        "correction", "not both")
 
 
 # ------------------------------------------------------------------ web description

@@ -53,7 +53,7 @@ def _half_disc_bound(radius, thickness, density):
 @pytest.mark.parametrize("kind", ["holes", "pockets", "plugs"])
 def test_target_beyond_reach_exits_3_with_one_line(tmp_path, kind):
     # a 3 kg rod big end (invented, far beyond any web): target per web -(3140 + 0.55 * 330) * 32 / 2
-    job = minimal_job_dict({"engine.rotating": {"rod_big_end": 3000.0, "crankpin": 140.0},
+    job = minimal_job_dict({"engine.rotating": {"rod_big_end": 3000.0},
                             "correction.kind": kind, "correction.plug_material": PLUG})
     path = _write(tmp_path, job)
     before = pc.disc_web_unbalance(diameter=130.0, thickness=18.0, density=STEEL, stroke=64.0, pin_bore=28.0)

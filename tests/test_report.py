@@ -99,7 +99,7 @@ def test_iso_figure_balance_factor_and_targets(run):
     for web in doc["webs"]:
         assert _shows(text, web["tolerance_gmm"], 1)
         assert _shows(text, web["target_gmm"][1], 1)
-        assert _shows(text, web["residual_bf_points"], 3)
+        assert _shows(text, web["deviation_bf_percent"], 3)
 
 
 def test_each_web_has_its_feature_table(run):

@@ -23,12 +23,15 @@ class FakeEngine:
     max_rpm: float = 11000.0
     balance_factor: float = 0.55
     reciprocating: dict = field(default_factory=lambda: {"piston": 250.0, "small_end": 80.0})
-    rotating: dict = field(default_factory=lambda: {"big_end": 200.0, "crankpin": 140.0})
+    rotating: dict = field(default_factory=lambda: {"big_end": 200.0})
+    crank_parts: dict = field(default_factory=lambda: {"crankpin": 140.0})
     cylinder_tilt: float = 0.0
+    rotation: str = "ccw"
 
     crank_radius = property(lambda self: self.stroke / 2)
     m_reciprocating = property(lambda self: sum(self.reciprocating.values()))
     m_rotating = property(lambda self: sum(self.rotating.values()))
+    m_crank_parts = property(lambda self: sum(self.crank_parts.values()))
     omega = property(lambda self: self.max_rpm * 2 * math.pi / 60)
 
 
@@ -56,15 +59,18 @@ def test_contract_keys_and_sizes(demo):
         assert key in demo
     assert [row["angle_deg"] for row in demo["cycle"]] == list(range(360))
     assert {"angle_deg", "force_x_N", "force_y_N"} <= set(demo["cycle"][0])
-    assert len(demo["sweep"]) == 101 and len(demo["sweep_no_balancer"]) == 101
-    assert [row["balance_factor"] for row in demo["sweep"]] == [round(i * 0.01, 2) for i in range(101)]
+    # the sweep covers the balance factors a job may ask for, 0 .. 1.5 in 0.01 steps
+    assert len(demo["sweep"]) == 151 and len(demo["sweep_no_balancer"]) == 151
+    assert [row["balance_factor"] for row in demo["sweep"]] == [round(i * 0.01, 2) for i in range(151)]
     assert {"balance_factor", "peak_N", "peak_along_N", "peak_across_N"} == set(demo["sweep"][0])
 
 
 def test_masses_bob_weight_and_targets(demo):
-    # closed form: bob = 340 + 0.55 * 330 = 521.5 g; webs together
-    # 521.5 * 32 = 16688 g*mm, 8344 each; tolerance 0.005 * 330 * 32 = 52.8 g*mm
-    assert demo["bob_weight_g"] == 521.5
+    # worked by hand (common practice): bob = 200 + 0.55 * 330 = 381.5 g (the crankpin is on the crank);
+    # the webs counter 381.5 + 140 = 521.5 g: together 521.5 * 32 = 16688 g*mm, 8344 each;
+    # tolerance 0.005 * 330 * 32 = 52.8 g*mm
+    assert demo["bob_weight_g"] == 381.5
+    assert demo["countered_at_pin_g"] == 521.5
     assert demo["target_per_web_gmm"] == 8344.0
     assert demo["targets_gmm"] == {"a": [0.0, -8344.0], "b": [0.0, -8344.0]}
     assert demo["tolerance_gmm"] == pytest.approx(52.8)

@@ -35,6 +35,8 @@ rod_small_end = 80.0
 
 [engine.rotating]
 rod_big_end = 200.0
+
+[engine.crank_parts]
 crankpin = 140.0
 
 [balancer]
