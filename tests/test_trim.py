@@ -95,3 +95,27 @@ def test_trim_on_one_web_leaves_the_other_as_it_was(planned):
     doc = pc.read_plan(out)
     assert pc.web_entry(doc, "b")["planned_features"] == []
     assert pc.web_entry(doc, "a")["planned_features"]
+
+
+@pytest.mark.parametrize("rotation, against, crank_deg", [
+    ("cw", False, -40.0),     # a clockwise crank: 40 deg in its direction of rotation is -40 deg ccw
+    ("ccw", True, -40.0),     # read against a counter-clockwise rotation
+    ("cw", True, 40.0),       # against a clockwise rotation: counter-clockwise again
+])
+def test_heavy_spot_angle_follows_the_direction_of_rotation(planned, rotation, against, crank_deg):
+    """A balancing machine gives the heavy spot from the crankpin in (or against) the direction of rotation
+    (common practice); the crank frame measures counter-clockwise seen from web a's outer face."""
+    tmp, _, clean, before = planned
+    job = tmp / f"job-{rotation}.toml"
+    job.write_text(toml_dumps(minimal_job_dict({"engine.rotation": rotation})))
+    out = tmp / f"trim-{rotation}-{against}"
+    args = ["trim", job, "--from", clean, "--unbalance", "300", "--angle", "40", "--out", out]
+    assert pc.run_cli(args + (["--against-rotation"] if against else [])) == 0
+    change = _crank_sum(out) - before
+    want = -_heavy_spot(300.0, crank_deg)
+    assert np.linalg.norm(change - want) <= 0.02 * 300.0, (change, want)
+    t = pc.read_plan(out)["trim"]
+    assert t["heavy_spot_crank_frame_deg"] == pytest.approx(crank_deg % 360.0)
+    assert t["reading_deg"] == 40.0
+    html = (out / "report.html").read_text()
+    assert "<title>Crank web trim:" in html and "Trim: the measured heavy spot" in html
