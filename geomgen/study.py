@@ -284,10 +284,10 @@ def _n_lbf(newton: float) -> str:
 def peak_line(result: dict) -> str:
     """The peak residual force in words: how large, at which crank angle, pointing where."""
     p = result["peak"]
-    twin = (f"; the same peak at {p['same_peak_at_deg']:g} deg, the other side of TDC"
+    twin = (f"; the same peak at {p['same_peak_at_deg']:.1f} deg, the other side of TDC"
             if p["same_peak_at_deg"] is not None else "")
-    return (f"peak residual force: {_n_lbf(result['peak_N'])} at crank angle {p['crank_angle_after_tdc_deg']:g} deg "
-            f"after TDC, pointing {p['direction_deg']:g} deg from +Y (ccw, crank frame){twin}; over a revolution "
+    return (f"peak residual force: {_n_lbf(result['peak_N'])} at crank angle {p['crank_angle_after_tdc_deg']:.1f} deg "
+            f"after TDC, pointing {p['direction_deg']:.1f} deg from +Y (ccw, crank frame){twin}; over a revolution "
             f"the largest along the cylinder is {_n_lbf(result['peak_along_N'])}, across "
             f"{_n_lbf(result['peak_across_N'])}")
 
@@ -309,8 +309,8 @@ def summary_lines(result: dict) -> list[str]:
             f"+-{result['inputs']['bf_tolerance_percent']:g} % balance factor)",
         peak_line(result),
         f"at TDC {_n_lbf(result['tdc']['resultant_N'])}, at BDC {_n_lbf(result['bdc']['resultant_N'])}",
-        f"reciprocating inertia torque about the crank axis: peak {result['inertia_torque']['peak_Nm']:g} N*m "
-        f"at {result['inertia_torque']['at_crank_angle_deg']:g} deg after TDC (no counterweight changes it)",
+        f"reciprocating inertia torque about the crank axis: peak {result['inertia_torque']['peak_Nm']:.1f} N*m "
+        f"at {result['inertia_torque']['at_crank_angle_deg']:.1f} deg after TDC (no counterweight changes it)",
     ]
     if inp["balancer"] is not None:
         lines.append(
