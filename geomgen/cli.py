@@ -53,11 +53,11 @@ def build_parser() -> argparse.ArgumentParser:
         p.add_argument("job", metavar="JOB", help="job file (TOML)")
         _add_out(p)
 
-    p = sub.add_parser("trim", help="correction for a residual unbalance measured on the assembled crank")
+    p = sub.add_parser("trim", help="take off an unbalance measured on the assembled crank with its bob weight")
     p.add_argument("job", metavar="JOB", help="job file (TOML)")
     p.add_argument("--from", dest="from_dir", required=True, metavar="DIR", help="the earlier plan or build folder")
     p.add_argument("--unbalance", required=True, metavar="U",
-                   help="measured residual, g*mm or a unit string (\"0.5 g*in\"), or mass at a radius (\"0.8 g at 55 mm\")")
+                   help="measured unbalance, g*mm or a unit string (\"0.5 g*in\"), or mass at a radius (\"0.8 g at 55 mm\")")
     p.add_argument("--angle", required=True, metavar="A",
                    help="heavy spot as the balancing machine reads it: deg from the crankpin, measured in the "
                         "direction of rotation ([engine] rotation)")

@@ -345,7 +345,7 @@ def plan_document(job, command: str, webs: list[WebWork], verified: list[dict], 
     doc_webs = []
     for w, v in zip(webs, verified or [None] * len(webs)):
         p = w.plan
-        deviation = p.residual
+        deviation = p.deviation
         entry = {
             "name": w.spec.name,
             "frame": "crank axis = Z through the origin, crankpin on +Y, counterweight on -Y; z from 0 "
@@ -679,7 +679,7 @@ def run_trim(args) -> int:
         now = section.massprops() + _props(existing[web.name], section)
         targets[web.name] = tuple(now.unbalance + changes[web.name])
         share = float(np.hypot(*changes[web.name])) / unbalance
-        # 1 % of the measured residual per web keeps the pair within 2 % of it
+        # 1 % of the measured unbalance per web keeps the pair within 2 % of it
         tolerances[web.name] = max(0.01 * unbalance * share, 0.05)
     webs = plan_webs(job, existing=existing, targets=targets, tolerances=tolerances, lighten=0.0)
     trim = {"measured_gmm": unbalance, "reading_deg": reading, "crank_frame_deg": angle,

@@ -77,12 +77,13 @@ class WebPlan:
     considered: tuple = field(default=())   # one line per method tried
 
     @property
-    def residual(self) -> np.ndarray:
+    def deviation(self) -> np.ndarray:
+        """The predicted unbalance minus the target, (2,) g*mm."""
         return self.predicted.unbalance - np.asarray(self.target)
 
     @property
     def within_tolerance(self) -> bool:
-        return _within(self.residual, self.tolerance)
+        return _within(self.deviation, self.tolerance)
 
 
 def _within(deviation, tolerance: float) -> bool:
