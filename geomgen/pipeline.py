@@ -472,13 +472,11 @@ def _clean_for_json(verified):
 
 
 # ------------------------------------------------------------------ commands
-def _shop_files(job, doc, webs, study_result) -> dict[str, bytes]:
-    """operations.csv, drawing.dxf and report.html, when the shop module is present."""
-    try:
-        from . import shop
-    except ImportError:
-        return {}
-    return shop.render(job=job, doc=doc, webs=webs, study=study_result)
+def _shop_files(job, doc, webs, study_result, study_svg: bytes | None) -> dict[str, bytes]:
+    """operations.csv, drawing.dxf and report.html."""
+    from . import shop
+
+    return shop.render(job=job, doc=doc, webs=webs, study=study_result, study_svg=study_svg)
 
 
 def _finish(args, job, command, webs, *, with_study=True, with_shop=True, trim=None):
@@ -493,7 +491,7 @@ def _finish(args, job, command, webs, *, with_study=True, with_shop=True, trim=N
         if study_result is not None:
             files.update(study_mod.render(study_result))
         if with_shop:
-            files.update(_shop_files(job, doc, webs, study_result))
+            files.update(_shop_files(job, doc, webs, study_result, files.get("study.svg")))
         write_files(stage, files)
         written = sorted(p.name for p in stage.iterdir())
     warn_all(line for line in doc["warnings"] if line not in job.warnings)

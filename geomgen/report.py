@@ -417,12 +417,14 @@ def _safety(doc: dict) -> str:
     return "".join(out)
 
 
-def _study(study: dict | None) -> str:
+def _study(study: dict | None, figure: bytes | None = None) -> str:
     if study is None:
         return "<p>No balance study in this run.</p>"
-    from .plots import study_svg
+    if figure is None:
+        from .plots import study_svg
 
-    svg = study_svg(study).decode("utf-8")
+        figure = study_svg(study)
+    svg = figure.decode("utf-8")
     # keep the <svg> element only: an XML declaration or DOCTYPE is not allowed inside HTML
     svg = svg[svg.index("<svg"):]
     svg = re.sub(r'<svg([^>]*?) width="[^"]*" height="[^"]*"', r"<svg\1", svg, count=1)
@@ -435,11 +437,11 @@ def _study(study: dict | None) -> str:
             f"{_n(study['best_balance_factor'], 2)}.</p>")
 
 
-def report_html(*, job, doc: dict, webs, study: dict | None) -> bytes:
+def report_html(*, job, doc: dict, webs, study: dict | None, study_svg: bytes | None = None) -> bytes:
     """The report as UTF-8 bytes.
 
     job : geomgen.job.Job;  doc : the plan.json dict;  webs : pipeline.WebWork list;
-    study : the study.study() result (its figure), or None.
+    study : the study.study() result (its figure), or None;  study_svg : that figure, when already drawn.
     """
     title = (f"Crank web trim: {doc['job']}" if doc["command"] == "trim"
              else f"Crank web correction: {doc['job']}")
@@ -454,7 +456,7 @@ def report_html(*, job, doc: dict, webs, study: dict | None) -> bytes:
         "<h2>Engine and weighed masses</h2>", _engine(doc),
         "<h2>Balance of each web</h2>", _balance_table(doc),
         "<h2>Couple</h2>", _couple(doc), _plug_range(doc),
-        "<h2>Shaking force and balance-factor sweep</h2>", _study(study), _study_figures(study),
+        "<h2>Shaking force and balance-factor sweep</h2>", _study(study, study_svg), _study_figures(study),
         "<h2>The webs before and after</h2>", blocks,
         "<h2>Verification: prediction, exact solid and mesh</h2>", _verification(doc),
         "<h2>Loads at speed</h2>", _safety(doc),

@@ -7,13 +7,14 @@ by its own module from the job, the plan.json document and the planned webs.
 from __future__ import annotations
 
 
-def render(*, job, doc: dict, webs, study: dict | None = None) -> dict[str, bytes]:
+def render(*, job, doc: dict, webs, study: dict | None = None, study_svg: bytes | None = None) -> dict[str, bytes]:
     """{file name: bytes} for operations.csv, drawing.dxf and report.html.
 
     job : geomgen.job.Job;  doc : the plan.json dict (pipeline.plan_document);
     webs : list of pipeline.WebWork;  study : the full study.study() result
     (its figure goes in the report); when it is not given it is worked out
-    again from the job (pure numpy, a few milliseconds).
+    again from the job (pure numpy, a few milliseconds).  study_svg : the study
+    figure already drawn for study.svg, so the report does not draw it again.
     """
     from .drawing import drawing_dxf
     from .report import report_html
@@ -26,5 +27,5 @@ def render(*, job, doc: dict, webs, study: dict | None = None) -> dict[str, byte
     return {
         "operations.csv": operations_csv(job=job, doc=doc, webs=webs),
         "drawing.dxf": drawing_dxf(job=job, doc=doc, webs=webs),
-        "report.html": report_html(job=job, doc=doc, webs=webs, study=study),
+        "report.html": report_html(job=job, doc=doc, webs=webs, study=study, study_svg=study_svg),
     }
