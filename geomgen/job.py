@@ -298,7 +298,11 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
 def _press_fit(t: dict, where: str, pin_bore: float, web_material: Material):
     """(pin_interference, pin_inner_diameter, pin_material) of one web."""
     # 1 % of the diameter strains steel past yield many times over: a bigger figure is a slip of units
-    fit = _number(t, "pin_interference", where, "length", default=0.0, lo=0.0, hi=0.01 * pin_bore)
+    fit = _number(t, "pin_interference", where, "length", default=0.0, lo=0.0)
+    if fit > 0.01 * pin_bore:
+        raise BadInput(f"{where}.pin_interference: {fit:g} mm is more than 1 % of the {pin_bore:g} mm pin bore "
+                       f"({0.01 * pin_bore:g} mm); give the diametral interference in mm, e.g. "
+                       f"{0.002 * pin_bore:.2g} (0 = no press-fit screen)")
     pin_inner = _number(t, "pin_inner_diameter", where, "length", default=0.0, lo=0.0)
     if pin_inner >= pin_bore:
         raise BadInput(f"{where}.pin_inner_diameter: {pin_inner:g} mm must be smaller than the "
