@@ -13,7 +13,7 @@ from pathlib import Path
 
 from .balance import bob_weight, rpm_to_omega, web_target
 from .errors import BadInput
-from .materials import Material, custom, material
+from .materials import MATERIALS, Material, custom, material
 from .units import to_internal
 
 
@@ -130,6 +130,9 @@ class WebSpec:
     outline_units: str | None = None
     features: tuple = ()
     share: float = 0.5                     # share of the crank's web target
+    pin_interference: float = 0.0          # diametral crankpin press fit, mm (0 = no press-fit screen)
+    pin_inner_diameter: float = 0.0        # the crankpin's own bore, mm (0 = solid pin)
+    pin_material: Material | None = None   # the crankpin's material (None = the web's)
 
     @property
     def density(self) -> float:
@@ -195,7 +198,7 @@ _ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt",
            "crank_parts", "rotation"}
 _BALANCER = {"share", "offset"}
 _WEB = {"diameter", "outline", "outline_units", "thickness", "material", "density", "pin_bore",
-        "main_bore", "features"}
+        "main_bore", "features", "pin_interference", "pin_inner_diameter", "pin_material"}
 _WEBS = _WEB | {"name", "share"}
 _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
                "plug_material", "lighten", "point_angle", "depth_step", "bf_tolerance_percent",
@@ -354,9 +357,35 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
     features = tuple(feature_from_table(f, where=f"{where}.features[{i}]", thickness=thickness,
                                         plug_material=plug_material)
                      for i, f in enumerate(raw))
-    return WebSpec(name=name, thickness=thickness, material=_resolve_material(t, where), pin_bore=pin_bore,
+    web_material = _resolve_material(t, where)
+    fit, pin_inner, pin_material = _press_fit(t, where, pin_bore, web_material)
+    return WebSpec(name=name, thickness=thickness, material=web_material, pin_bore=pin_bore,
                    main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units,
-                   features=features, share=share)
+                   features=features, share=share, pin_interference=fit, pin_inner_diameter=pin_inner,
+                   pin_material=pin_material)
+
+
+def _press_fit(t: dict, where: str, pin_bore: float, web_material: Material):
+    """(pin_interference, pin_inner_diameter, pin_material) of one web."""
+    # 1 % of the diameter strains steel past yield many times over: a bigger figure is a slip of units
+    fit = _number(t, "pin_interference", where, "length", default=0.0, lo=0.0)
+    if fit > 0.01 * pin_bore:
+        raise BadInput(f"{where}.pin_interference: {fit:g} mm is more than 1 % of the {pin_bore:g} mm pin bore "
+                       f"({0.01 * pin_bore:g} mm); give the diametral interference in mm, e.g. "
+                       f"{0.002 * pin_bore:.2g} (0 = no press-fit screen)")
+    pin_inner = _number(t, "pin_inner_diameter", where, "length", default=0.0, lo=0.0)
+    if pin_inner >= pin_bore:
+        raise BadInput(f"{where}.pin_inner_diameter: {pin_inner:g} mm must be smaller than the "
+                       f"{pin_bore:g} mm pin bore (0 = a solid crankpin)")
+    pin_material = None
+    if "pin_material" in t:
+        if not isinstance(t["pin_material"], str):
+            raise BadInput(f"{where}.pin_material: must be a material name, got {t['pin_material']!r}")
+        pin_material = material(t["pin_material"], f"{where}.pin_material")
+    if fit > 0 and not web_material.has_elastic:
+        raise BadInput(f"{where}.pin_interference: the press-fit screen needs the web's stiffness, and a web "
+                       f"given as a density has none; name its material instead (one of {', '.join(MATERIALS)})")
+    return fit, pin_inner, pin_material
 
 
 def _webs(data: dict, engine: Engine, base: Path, plug_material: Material | None = None) -> tuple[WebSpec, ...]:

@@ -262,7 +262,8 @@ def plug_density_range(job, webs: list[WebWork]) -> dict | None:
 
 
 def safety_figures(job, webs: list[WebWork]) -> dict:
-    from .loads import disc_hoop_stress_mpa, plug_load_n
+    from .loads import POISSON_STEEL, disc_hoop_stress_mpa, plug_load_n
+    from .screens import screen_figures
 
     e = job.engine
     over = e.max_rpm * job.overspeed
@@ -279,17 +280,22 @@ def safety_figures(job, webs: list[WebWork]) -> dict:
                               "load_N_overspeed": _num(plug_load_n(mass_g=mass, radius_mm=radius, rpm=over))})
         r_out = w.section.rim_radius_max
         bore = 0.5 * w.section.main_bore
+        # a web given only as a density has no Poisson's ratio: the steel figure (nu moves the result a few % at most)
+        nu = w.spec.material.poisson_ratio if w.spec.material.poisson_ratio is not None else POISSON_STEEL
         discs.append({"web": w.spec.name, "outer_radius_mm": _num(r_out), "bore_radius_mm": _num(bore),
+                      "poisson_ratio": _num(nu),
                       "hoop_stress_MPa_max_rpm": _num(disc_hoop_stress_mpa(
                           density_g_cm3=w.section.density_g_cm3, outer_radius_mm=r_out, bore_radius_mm=bore,
-                          rpm=e.max_rpm)),
+                          rpm=e.max_rpm, poisson=nu)),
                       "hoop_stress_MPa_overspeed": _num(disc_hoop_stress_mpa(
                           density_g_cm3=w.section.density_g_cm3, outer_radius_mm=r_out, bore_radius_mm=bore,
-                          rpm=over))})
+                          rpm=over, poisson=nu))})
     return {"max_rpm": _num(e.max_rpm), "overspeed_rpm": _num(over), "plugs": plugs, "discs": discs,
-            "disc_method": "thin rotating disc of constant thickness, nu = 0.3 (Timoshenko & Goodier); "
+            "disc_method": "thin rotating disc of constant thickness, each web's own Poisson's ratio (0.3 for a "
+                           "web given only as a density) (Timoshenko & Goodier); "
                            "ignores the crankpin bore, the correction holes and the press fit, which all raise "
-                           "the real stress: a lower bound, not a rating"}
+                           "the real stress: a lower bound, not a rating",
+            **screen_figures(job, webs)}
 
 
 # ------------------------------------------------------------------ plan.json

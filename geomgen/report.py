@@ -414,6 +414,44 @@ def _safety(doc: dict) -> str:
                        f"at {_n(s['overspeed_rpm'], 0)} rpm (MPa)"], rows))
     out.append(f'<p class="note"><b>Caveat:</b> {_e(s["disc_method"])}. Use it to spot a design that needs a '
                "proper stress check, never to clear one.</p>")
+    out.append("<h3>Crankpin press fit</h3>")
+    if s.get("press_fit"):
+        rows = [[_e(f["web"]), f"{_e(f['web_material'])} / {_e(f['pin_material'])}", _n(f["interference_mm"], 3),
+                 _n(f["pin_diameter_mm"], 2), _n(f["pin_inner_diameter_mm"], 2),
+                 f"{_n(f['hub_outer_diameter_mm'], 2)} ({_e(f['hub_edge'])})",
+                 f"{_n(f['contact_pressure_MPa'], 0)} – {_n(f['contact_pressure_MPa_unbounded_hub'], 0)}",
+                 _n(f["web_hoop_MPa"], 0), _n(f["pin_hoop_MPa"], 0)] for f in s["press_fit"]]
+        out.append(_table(["web", "web / pin material", "interference, diametral (mm)", "pin (mm)",
+                           "pin bore (mm)", "web as a ring, outer diameter (mm)", "contact pressure (MPa)",
+                           "web hoop stress at the bore (MPa)", "pin hoop stress, largest (MPa)"], rows, left=2))
+        out.append(f'<p class="note">{_e(s["press_fit_method"])} The pressure runs from the ring to the unbounded '
+                   "web; a negative hoop stress is compression.</p>")
+    else:
+        out.append("<p>No press-fit screen: the job gives no <code>pin_interference</code>.</p>")
+    out.append("<h3>Wall around the crankpin bore</h3>")
+    rows = [[_e(g["web"]),
+             "no features" if g["feature"] is None else f"{g['feature']} ({_e(g['feature_kind'])}, "
+                                                         f"{_e(g['feature_origin'])})",
+             "–" if g["ligament_mm"] is None else
+             (f'<span class="bad">{_n(g["ligament_mm"], 2)}</span>' if g["below_pin_wall"] else _n(g["ligament_mm"], 2)),
+             _n(g["pin_wall_mm"], 2), f"{_n(g['edge_wall_mm'], 2)} ({_e(g['edge'])})"] for g in s.get("pin_ligaments", [])]
+    out.append(_table(["web", "nearest feature", "least wall to it (mm)", "pin_wall asked (mm)",
+                       "least wall to a free edge (mm)"], rows, left=2))
+    out.append(f'<p class="note">{_e(s.get("pin_ligament_method", ""))}</p>')
+    if s.get("plug_walls"):
+        out.append("<h3>Wall between each plug and the rim</h3>")
+        rows = [[_e(p["web"]), str(p["feature"]), _n(p["wall_to_rim_mm"], 2), _n(p["load_N_overspeed"], 0),
+                 _n(p["bearing_MPa_max_rpm"], 1), _n(p["bearing_MPa_overspeed"], 1),
+                 "–" if p["wall_shear_MPa_max_rpm"] is None else _n(p["wall_shear_MPa_max_rpm"], 1),
+                 "–" if p["wall_shear_MPa_overspeed"] is None else _n(p["wall_shear_MPa_overspeed"], 1)]
+                for p in s["plug_walls"]]
+        out.append(_table(["web", "feature", "wall to the rim (mm)", f"load at {_n(s['overspeed_rpm'], 0)} rpm (N)",
+                           f"bearing at {_n(s['max_rpm'], 0)} rpm (MPa)", f"at {_n(s['overspeed_rpm'], 0)} rpm (MPa)",
+                           f"wall shear at {_n(s['max_rpm'], 0)} rpm (MPa)", f"at {_n(s['overspeed_rpm'], 0)} rpm (MPa)"],
+                          rows, left=2))
+        out.append(f'<p class="note">{_e(s["plug_wall_method"])}</p>')
+    if "screen_caution" in s:
+        out.append(f'<p class="note"><b>{_e(s["screen_caution"])}</b></p>')
     return "".join(out)
 
 
