@@ -33,6 +33,7 @@ diameter = 130.0
 thickness = 18.0
 material = "steel"
 pin_bore = 28.0
+pin_interference = 0.06
 [[web.features]]
 kind = "hole"
 x = 40.0
