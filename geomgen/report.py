@@ -422,7 +422,7 @@ def _safety(doc: dict) -> str:
                  f"{_n(f['contact_pressure_MPa'], 0)} – {_n(f['contact_pressure_MPa_unbounded_hub'], 0)}",
                  _n(f["web_hoop_MPa"], 0), _n(f["pin_hoop_MPa"], 0)] for f in s["press_fit"]]
         out.append(_table(["web", "web / pin material", "interference, diametral (mm)", "pin (mm)",
-                           "pin bore (mm)", "web as a ring, outer diameter (mm)", "contact pressure (MPa)",
+                           "crankpin's own bore (mm)", "web as a ring, outer diameter (mm)", "contact pressure (MPa)",
                            "web hoop stress at the bore (MPa)", "pin hoop stress, largest (MPa)"], rows, left=2))
         out.append(f'<p class="note">{_e(s["press_fit_method"])} The pressure runs from the ring to the unbounded '
                    "web; a negative hoop stress is compression.</p>")

@@ -161,7 +161,7 @@ def pin_ligament(web, *, pin_wall: float) -> dict:
     for i, f in enumerate(web.all_features):
         gap = circle_ligament(centre, radius, footprint(f))
         if nearest is None or gap < nearest[0]:
-            nearest = (gap, i + 1, f.kind, "existing" if i < len(web.existing) else "planned")
+            nearest = (gap, i + 1, f.kind, "existing" if i < len(web.existing) else "new")
     rim_r, edge = hub_edge(section)
     row = {"web": web.spec.name, "pin_wall_mm": _num(pin_wall), "edge_wall_mm": _num(rim_r - radius),
            "edge": edge, "ligament_mm": None, "feature": None, "feature_kind": None, "feature_origin": None,

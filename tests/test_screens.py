@@ -121,7 +121,7 @@ def test_planned_holes_keep_the_pin_wall():
     job = _job()
     rows = screen_figures(job, pipeline.plan_webs(job))["pin_ligaments"]
     for r in rows:
-        assert r["feature_origin"] == "planned"
+        assert r["feature_origin"] == "new"
         assert r["ligament_mm"] >= job.correction.pin_wall - 1e-6
 
 
