@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .errors import BadInput
+from .fits import DEFAULT_FIT, check_fit
 from .materials import Material, custom, material
 from .units import to_internal
 
@@ -112,6 +113,7 @@ class Correction:
     depth_step: float = 0.05               # mm, the depth a machinist can set
     tolerance_points: float = 0.5          # balance-factor points (0.5 = the contract's default)
     iso_grade: float = 6.3                 # ISO 21940-11 G-grade, mm/s
+    plug_fit: str = "H7/p6"                # ISO 286 bore/plug fit of heavy-metal plugs
 
 
 @dataclass(frozen=True)
@@ -156,7 +158,8 @@ _WEB = {"diameter", "outline", "outline_units", "thickness", "material", "densit
         "main_bore", "features"}
 _WEBS = _WEB | {"name", "share"}
 _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
-               "plug_material", "lighten", "point_angle", "depth_step", "tolerance_points", "iso_grade"}
+               "plug_material", "lighten", "point_angle", "depth_step", "tolerance_points", "iso_grade",
+               "plug_fit"}
 _OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step", "crank_gap"}
 KINDS = ("holes", "pockets", "plugs", "auto")
 
@@ -380,6 +383,7 @@ def _correction(data) -> Correction:
         depth_step=_number(t, "depth_step", w, "length", default=0.05, lo=0.001, hi=1.0),
         tolerance_points=_number(t, "tolerance_points", w, "dimensionless", default=0.5, lo=0.0, lo_open=True, hi=0.5),
         iso_grade=_number(t, "iso_grade", w, "dimensionless", default=6.3, lo=0.0, lo_open=True, hi=4000.0),
+        plug_fit=check_fit(t.get("plug_fit", DEFAULT_FIT), "correction.plug_fit"),
     )
 
 
