@@ -1,7 +1,7 @@
 """The job file: TOML in, validated frozen dataclasses out (mm, g, rpm, deg).
 
 Every rule names the key path and what is allowed; everything wrong raises
-`BadInput`.  See shared/design.md for the keys.
+`BadInput`.  The keys are listed in the README ("The job file").
 """
 
 from __future__ import annotations
@@ -13,6 +13,7 @@ from pathlib import Path
 
 from .balance import bob_weight, rpm_to_omega, web_target
 from .errors import BadInput
+from .fits import DEFAULT_FIT, check_fit
 from .materials import MATERIALS, Material, custom, material
 from .units import to_internal
 
@@ -157,6 +158,7 @@ class Correction:
     depth_step: float = 0.05               # mm, the depth a machinist can set
     bf_tolerance_percent: float = 0.5      # |deviation| allowed, balance-factor percent (0.5 = +-0.5 %)
     iso_grade: float = 6.3                 # ISO 21940-11 G-grade, mm/s
+    plug_fit: str = "H7/p6"                # ISO 286 bore/plug fit of heavy-metal plugs
 
 
 @dataclass(frozen=True)
@@ -202,7 +204,7 @@ _WEB = {"diameter", "outline", "outline_units", "thickness", "material", "densit
 _WEBS = _WEB | {"name", "share"}
 _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
                "plug_material", "lighten", "point_angle", "depth_step", "bf_tolerance_percent",
-               "tolerance_points", "iso_grade"}
+               "tolerance_points", "iso_grade", "plug_fit"}
 _OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step", "crank_gap"}
 KINDS = ("holes", "pockets", "plugs", "auto")
 ROTATIONS = ("ccw", "cw")
@@ -479,6 +481,7 @@ def _correction(data) -> Correction:
         depth_step=_number(t, "depth_step", w, "length", default=0.05, lo=0.001, hi=1.0),
         bf_tolerance_percent=_bf_tolerance(t),
         iso_grade=_number(t, "iso_grade", w, "dimensionless", default=6.3, lo=0.0, lo_open=True, hi=4000.0),
+        plug_fit=check_fit(t.get("plug_fit", DEFAULT_FIT), "correction.plug_fit"),
     )
 
 

@@ -1,5 +1,11 @@
 """operations.csv: the machinist's sheet, one row per feature per web, in machining order.
 
+The file is plain data (RFC 4180): the header on the first line, one row
+per feature, CRLF line ends, no comments.  A column holds one type: numbers
+as plain decimals, text from a short vocabulary, empty where it does not
+apply.  How to read it is in `sheet_notes`, which the report and the drawing
+carry.
+
 Positions are given as the machinist sees the web on the machine: a feature
 cut from the outer face is located in the web frame itself (the web is seen
 from its outer face); a feature cut from the inner face is located after the
@@ -7,8 +13,10 @@ web is turned over about its Y axis, so its x is mirrored (x_face = -x_web)
 and a pocket's angles become (-angle_end .. -angle_start).  The mass and
 unbalance effects stay in the web frame, the frame the balance is reckoned in.
 
-Rounding is what a machinist sets: 0.01 mm or 0.0005 in for lengths, 0.1 deg
-for angles (common practice); masses to 0.01 g, unbalance to 0.1 g*mm.
+Rounding is what a machinist sets (common practice): positions, depths and
+radii 0.01 mm or 0.0005 in; diameters and fit limits 0.001 mm or 0.00001 in
+(inch fit limits rounded inwards, so a part inside them is inside the
+metric limits); angles 0.1 deg; masses 0.01 g, unbalance 0.1 g*mm.
 """
 
 from __future__ import annotations
@@ -16,51 +24,66 @@ from __future__ import annotations
 import csv
 import io
 import math
+from dataclasses import replace
 
 from .drills import designation
-from .features import Hole, Plug, Pocket
+from .features import Hole, Plug, Pocket, plug_density_of
+from .plugbore import plug_bore
 from .units import MM_PER_INCH
 
-#: length step a machinist sets, per sheet unit (common practice)
-LENGTH_STEP = {"mm": 0.01, "inch": 0.0005}
-LENGTH_DECIMALS = {"mm": 2, "inch": 4}
-LENGTH_SUFFIX = {"mm": "mm", "inch": "in"}
+SUFFIX = {"mm": "mm", "inch": "in"}
+#: positions, depths, radii: (step, decimals) per sheet unit (common practice)
+SET_STEP = {"mm": (0.01, 2), "inch": (0.0005, 4)}
+#: diameters and fit limits: decimals per sheet unit
+SIZE_DECIMALS = {"mm": 3, "inch": 5}
 ANGLE_DECIMALS = 1
-
-_LENGTH_COLUMNS = ("x", "y", "diameter", "depth_shoulder", "depth_point", "plug_length",
-                   "r_inner", "r_outer", "corner_radius")
 
 
 def columns(units: str) -> list[str]:
     """The header of operations.csv for a sheet in `units` ("mm" | "inch")."""
-    s = LENGTH_SUFFIX[units]
-    return ["web", "step", "status", "kind", "face", "view",
-            f"x_{s}", f"y_{s}", f"diameter_{s}", "drill",
-            f"depth_shoulder_{s}", f"depth_point_{s}", "point_angle_deg", "through",
+    s = SUFFIX[units]
+    return ["web", "feature", "status", "kind", "face",
+            f"x_{s}", f"y_{s}", f"diameter_{s}", "through", "bottom",
+            f"depth_{s}", f"tip_depth_{s}", "point_angle_deg", "drill_size", f"drill_{s}",
+            f"pre_ream_{s}", f"ream_stock_{s}",
+            "bore_fit", f"bore_min_{s}", f"bore_max_{s}", "plug_fit", f"plug_min_{s}", f"plug_max_{s}",
+            f"interference_min_{s}", f"interference_max_{s}",
+            f"plug_length_{s}", "plug_material", "plug_density_g_cm3",
             f"r_inner_{s}", f"r_outer_{s}", "angle_start_deg", "angle_end_deg", f"corner_radius_{s}",
-            "plug_material", "plug_density_g_cm3", f"plug_length_{s}",
             "mass_change_g", "unbalance_change_x_gmm", "unbalance_change_y_gmm"]
 
 
+def _fixed(value: float, decimals: int) -> str:
+    """`value` with `decimals` places, never "-0.00"."""
+    text = f"{value:.{decimals}f}"
+    return text[1:] if text.startswith("-") and float(text) == 0 else text
+
+
+def _in_units(value_mm: float, units: str) -> float:
+    return value_mm if units == "mm" else value_mm / MM_PER_INCH
+
+
 def set_length(value_mm: float, units: str) -> str:
-    """A length as the machinist sets it: mm to 0.01, or inch to 0.0005 (4 decimals)."""
-    value = value_mm if units == "mm" else value_mm / MM_PER_INCH
-    step = LENGTH_STEP[units]
-    stepped = round(value / step) * step
-    text = f"{stepped:.{LENGTH_DECIMALS[units]}f}"
-    return "0." + "0" * LENGTH_DECIMALS[units] if text.startswith("-") and float(text) == 0 else text
+    """A position, depth or radius as the machinist sets it: mm to 0.01, or inch to 0.0005 (4 decimals)."""
+    step, decimals = SET_STEP[units]
+    return _fixed(round(_in_units(value_mm, units) / step) * step, decimals)
+
+
+def size(value_mm: float, units: str) -> str:
+    """A diameter: mm to 0.001, inch to 0.00001."""
+    return _fixed(_in_units(value_mm, units), SIZE_DECIMALS[units])
+
+
+def _limit(value_mm: float, units: str, *, upper: bool) -> float:
+    """A fit limit in sheet units, rounded inwards (an upper limit down, a lower one up)."""
+    scale = 10 ** SIZE_DECIMALS[units]
+    v = _in_units(value_mm, units) * scale
+    v = round(v, 6)                      # an exact metric limit must not move a step on float noise
+    return (math.floor(v) if upper else math.ceil(v)) / scale
 
 
 def _angle(deg: float) -> str:
-    text = f"{deg:.{ANGLE_DECIMALS}f}"
-    return "0.0" if float(text) == 0 else text
-
-
-def point_length_mm(diameter_mm: float, point_angle_deg: float) -> float:
-    """Axial length of a drill point, mm: d / 2 / tan(angle / 2) (0 for a flat bottom)."""
-    if point_angle_deg >= 180.0:
-        return 0.0
-    return 0.5 * diameter_mm / math.tan(math.radians(0.5 * point_angle_deg))
+    return _fixed(deg, ANGLE_DECIMALS)
 
 
 def face_view(x: float, face: str) -> float:
@@ -68,52 +91,82 @@ def face_view(x: float, face: str) -> float:
     return -x if face == "inner" else x
 
 
-def feature_row(feature, *, web: str, step: int, status: str, effect: dict, thickness: float,
-                units: str, drill_series: str, plug_density: float | None) -> dict:
-    """One row of the sheet (a dict keyed by `columns(units)`, values as text)."""
-    s = LENGTH_SUFFIX[units]
+def _yes(flag: bool) -> str:
+    return "yes" if flag else "no"
+
+
+def feature_row(feature, *, web: str, number: int, status: str, effect: dict, thickness: float,
+                units: str, correction, plug_density: float | None = None) -> dict:
+    """One row of the sheet (a dict keyed by `columns(units)`, values as text).
+
+    number : the feature's number on the drawing and in the report;  status : "existing" | "new";
+    effect : {"mass_g", "unbalance_gmm"} from plan.json;  correction : the job's Correction
+    (drills, point angle, plug fit);  plug_density : g/cm^3, for a plug.
+    """
+    s = SUFFIX[units]
     row = {c: "" for c in columns(units)}
     face = feature.face
-    row.update({"web": web, "step": str(step), "status": status, "face": face,
-                "view": "outer face up" if face == "outer" else "inner face up (x mirrored)",
-                "mass_change_g": f"{effect['mass_g']:.2f}",
-                "unbalance_change_x_gmm": f"{effect['unbalance_gmm'][0]:.1f}",
-                "unbalance_change_y_gmm": f"{effect['unbalance_gmm'][1]:.1f}"})
+    row.update({"web": web, "feature": str(number), "status": status, "kind": feature.kind, "face": face,
+                "mass_change_g": _fixed(effect["mass_g"], 2),
+                "unbalance_change_x_gmm": _fixed(effect["unbalance_gmm"][0], 1),
+                "unbalance_change_y_gmm": _fixed(effect["unbalance_gmm"][1], 1)})
 
     def put(key, mm):
         row[f"{key}_{s}"] = set_length(mm, units)
 
+    def put_size(key, mm):
+        row[f"{key}_{s}"] = size(mm, units)
+
     if isinstance(feature, (Hole, Plug)):
         put("x", face_view(feature.x, face))
         put("y", feature.y)
-        put("diameter", feature.diameter)
-        row["drill"] = designation(feature.diameter, drill_series)
+        put_size("diameter", feature.diameter)
     if isinstance(feature, Hole):
-        row["kind"] = "drill"
         depth = thickness if feature.through else feature.depth
-        point = point_length_mm(feature.diameter, feature.point_angle)
-        put("depth_shoulder", depth)
-        # through: the drill travels its point length past the far face to cut full diameter
-        put("depth_point", depth + point)
+        flat = feature.point_angle >= 180.0
+        row["through"] = _yes(feature.through)
+        row["bottom"] = "" if feature.through else ("flat" if flat else "point")
+        put("depth", depth)
+        # through: the drill travels its point length past the far face to cut full diameter there
+        put("tip_depth", depth + replace(feature, through=False, depth=depth).point_length)
         row["point_angle_deg"] = _angle(feature.point_angle)
-        row["through"] = "through" if feature.through else "blind"
+        row["drill_size"] = designation(feature.diameter, correction.drill_series)
+        put_size("drill", feature.diameter)
     elif isinstance(feature, Plug):
-        row["kind"] = "plug bore + plug"
-        put("depth_shoulder", feature.length)
-        put("depth_point", feature.length)          # flat-bottomed bore
-        row["point_angle_deg"] = "180.0"
-        row["through"] = "through" if feature.length >= thickness - 1e-9 else "blind"
-        row["plug_material"] = feature.material or "custom"
-        row["plug_density_g_cm3"] = f"{plug_density:.3f}" if plug_density is not None else ""
+        bore = plug_bore(diameter_mm=feature.diameter, length_mm=feature.length, thickness_mm=thickness,
+                         drills=correction.drills, point_angle_deg=correction.point_angle,
+                         fit=correction.plug_fit, where=f"web {web} feature {number}")
+        row["through"] = _yes(bore.through)
+        row["bottom"] = "" if bore.through else "flat"
+        put("depth", bore.depth_mm)
+        put("tip_depth", bore.tip_depth_mm)
+        row["point_angle_deg"] = _angle(bore.point_angle_deg)
+        row["drill_size"] = designation(bore.drill_mm, correction.drill_series if bore.drill_in_series else "list")
+        put_size("drill", bore.drill_mm)
+        put_size("pre_ream", bore.pre_ream_mm)
+        put_size("ream_stock", bore.ream_stock_mm)
+        lim = bore.limits
+        limits = {"bore_min": _limit(lim.bore_min_mm, units, upper=False),
+                  "bore_max": _limit(lim.bore_max_mm, units, upper=True),
+                  "plug_min": _limit(lim.plug_min_mm, units, upper=False),
+                  "plug_max": _limit(lim.plug_max_mm, units, upper=True)}
+        decimals = SIZE_DECIMALS[units]
+        for key, value in limits.items():
+            row[f"{key}_{s}"] = _fixed(value, decimals)
+        # from the printed limits, so that the pair the shop measures inside them has this interference
+        row[f"interference_min_{s}"] = _fixed(limits["plug_min"] - limits["bore_max"], decimals)
+        row[f"interference_max_{s}"] = _fixed(limits["plug_max"] - limits["bore_min"], decimals)
+        row["bore_fit"], row["plug_fit"] = lim.bore_class, lim.plug_class
         put("plug_length", feature.length)
+        row["plug_material"] = feature.material or "custom"
+        row["plug_density_g_cm3"] = _fixed(plug_density, 3) if plug_density is not None else ""
     elif isinstance(feature, Pocket):
-        row["kind"] = "pocket"
         start, end = feature.angle_start, feature.angle_start + feature.span_deg
         if face == "inner":
             start, end = -end, -start
-        put("depth_shoulder", feature.depth)
-        put("depth_point", feature.depth)           # flat floor
-        row["through"] = "blind"
+        row["through"] = "no"
+        row["bottom"] = "flat"
+        put("depth", feature.depth)
         put("r_inner", feature.r_inner)
         put("r_outer", feature.r_outer)
         row["angle_start_deg"] = _angle(start)
@@ -122,45 +175,112 @@ def feature_row(feature, *, web: str, step: int, status: str, effect: dict, thic
     return row
 
 
-def header_lines(*, job_name: str, units: str) -> list[str]:
-    """Comment lines (starting with '#') that tell the machinist how to read the sheet."""
-    u = LENGTH_SUFFIX[units]
-    return [
-        f"# geomgen operations sheet, job: {job_name}; lengths in {u}, angles in deg, mass in g, unbalance in g*mm",
-        "# frame: crank axis at x = y = 0, crankpin on +y, counterweight on -y; angles from +y, counter-clockwise",
-        "# face 'outer': web clamped outer face up, x and y as in the web frame",
-        "# face 'inner': web turned over about its y axis, inner face up: x is mirrored (x = -x_web), "
-        "pocket angles are mirrored too",
-        "# depth_shoulder: full-diameter depth from the face; depth_point: to the drill point "
-        "(through holes: drill travel to cut full diameter at the far face)",
-        "# status 'existing': already on the web, check it is there; 'cut': machine it, in step order",
-        "# mass and unbalance changes are in the web frame (seen from the outer face)",
-        "# CAUTION: design aid, not a release for service; check the part and its balance before it runs",
-    ]
+def _plug_density(feature: Plug, job) -> float:
+    if feature.material or feature.density:
+        return plug_density_of(feature)
+    return job.correction.plug_material.density
 
 
-def operations_csv(*, job, doc: dict, webs) -> bytes:
-    """The sheet as CSV bytes (UTF-8, '\\n' line ends, same job -> same bytes).
+def sheet_rows(*, job, doc: dict, webs) -> list[dict]:
+    """Every row of the sheet, web by web: existing features first, then the new ones in cutting order.
 
     job : geomgen.job.Job;  doc : the plan.json dict;  webs : pipeline.WebWork list.
     """
-    from .features import plug_density_of
-
     units = job.output.sheet_units
-    out = io.StringIO()
-    for line in header_lines(job_name=job.name, units=units):
-        out.write(line + "\n")
-    writer = csv.DictWriter(out, fieldnames=columns(units), lineterminator="\n")
-    writer.writeheader()
+    rows = []
     for w, entry in zip(webs, doc["webs"]):
-        rows = [("existing", f) for f in w.existing] + [("cut", f) for f in w.plan.features]
+        features = [("existing", f) for f in w.existing] + [("new", f) for f in w.plan.features]
         tables = entry["existing_features"] + entry["planned_features"]
-        for step, ((status, feature), table) in enumerate(zip(rows, tables), start=1):
-            rho = None
-            if isinstance(feature, Plug):
-                rho = (plug_density_of(feature) if feature.material or feature.density
-                       else job.correction.plug_material.density)
-            writer.writerow(feature_row(feature, web=w.spec.name, step=step, status=status,
-                                        effect=table["effect"], thickness=w.section.thickness, units=units,
-                                        drill_series=job.correction.drill_series, plug_density=rho))
+        for number, ((status, feature), table) in enumerate(zip(features, tables), start=1):
+            rho = _plug_density(feature, job) if isinstance(feature, Plug) else None
+            rows.append(feature_row(feature, web=w.spec.name, number=number, status=status,
+                                    effect=table["effect"], thickness=w.section.thickness, units=units,
+                                    correction=job.correction, plug_density=rho))
+    return rows
+
+
+def operations_csv(*, job, doc: dict, webs) -> bytes:
+    """The sheet as CSV bytes: UTF-8, header first, CRLF line ends (RFC 4180); same job -> same bytes."""
+    out = io.StringIO(newline="")
+    writer = csv.DictWriter(out, fieldnames=columns(job.output.sheet_units), lineterminator="\r\n")
+    writer.writeheader()
+    writer.writerows(sheet_rows(job=job, doc=doc, webs=webs))
     return out.getvalue().encode("utf-8")
+
+
+def _plug_lines(job, doc: dict) -> list[str]:
+    """One line per kind of plug bore on the sheet: how it is made and the limits of its fit."""
+    inch = job.output.sheet_units == "inch"
+    series = job.correction.drill_series
+    seen, lines = set(), []
+    for entry in doc["webs"]:
+        thickness = entry["thickness_mm"]
+        for f in entry["features"]:
+            if f["kind"] != "plug":
+                continue
+            bore = plug_bore(diameter_mm=f["diameter"], length_mm=f.get("length", thickness), thickness_mm=thickness,
+                             drills=job.correction.drills, point_angle_deg=job.correction.point_angle,
+                             fit=job.correction.plug_fit, where=f"web {entry['name']} plug")
+            key = (round(bore.diameter_mm, 6), bore.through)
+            if key in seen:
+                continue
+            seen.add(key)
+            lim, d = bore.limits, designation(bore.diameter_mm, series)
+            steps = [f"drill {designation(bore.drill_mm, series if bore.drill_in_series else 'list')}"]
+            if bore.opened:
+                steps.append(f"open to {bore.pre_ream_mm:.2f} mm")
+            steps.append("through" if bore.through else f"flat bottom at {bore.pre_ream_mm:.2f} mm")
+            steps += [f"ream {d} {lim.bore_class}", f"press the {lim.plug_class} plug flush"]
+            text = (f"plug {d} {lim.fit}, {'through' if bore.through else 'blind'}: bore {lim.bore_min_mm:.3f} .. "
+                    f"{lim.bore_max_mm:.3f} mm, plug {lim.plug_min_mm:.3f} .. {lim.plug_max_mm:.3f} mm")
+            if inch:
+                bounds = [_limit(lim.bore_min_mm, "inch", upper=False), _limit(lim.bore_max_mm, "inch", upper=True),
+                          _limit(lim.plug_min_mm, "inch", upper=False), _limit(lim.plug_max_mm, "inch", upper=True)]
+                b = [_fixed(v, SIZE_DECIMALS["inch"]) for v in bounds]
+                text += f" (bore {b[0]} .. {b[1]} in, plug {b[2]} .. {b[3]} in)"
+            text += (f", interference {lim.interference_min_um / 1000:.3f} .. {lim.interference_max_um / 1000:.3f} mm;"
+                     f" made by: {', '.join(steps)}.")
+            lines.append(text)
+            if lim.interference_min_um <= 0:
+                lines.append(f"{lim.fit} is a transition fit at {d}: the loosest pair has "
+                             f"{-lim.interference_min_um} um clearance and does not hold a plug by itself.")
+    return lines
+
+
+def sheet_notes(job, doc: dict) -> list[str]:
+    """How to read operations.csv, as plain lines (no comment marks) for the report, the drawing and the README.
+
+    job : geomgen.job.Job;  doc : the plan.json dict (its "cautions" end the list).
+    """
+    u = SUFFIX[job.output.sheet_units]
+    lines = [
+        f"operations.csv, job {job.name}: one row per feature per web, existing features first, then the new "
+        f"ones in cutting order. Lengths in {u} (column names end in _{u}), angles in deg, mass in g, "
+        "unbalance in g*mm; an empty cell means the column does not apply to that feature.",
+        "Frame: crank axis at x = y = 0, crankpin on +y, counterweight on -y; angles from +y, counter-clockwise.",
+        "face outer: the web clamped outer face up; x and y as in the web frame.",
+        "face inner: the web turned over about its y axis, inner face up: x is mirrored (x = -x_web) and a "
+        "pocket's angles are mirrored (-angle_end .. -angle_start).",
+        "feature: the number on drawing.dxf and in report.html (E1, E2 ... there for existing features). "
+        "status existing: already on the web, check it is there; status new: machine it, in row order.",
+        "kind hole, pocket or plug. depth: full-diameter depth from the face (a pocket's floor, a plug bore's "
+        "flat bottom); tip_depth: the drill's travel to its tip (a through hole's drill goes on until it cuts "
+        "full diameter at the far face); through: yes or no; bottom: point or flat, empty when through.",
+        "plug rows, in order: drill (drill_size) to tip_depth; where pre_ream is larger than the drill, open "
+        "the bore to pre_ream; in a blind bore cut the bottom flat at pre_ream diameter down to depth, no "
+        "deeper; ream to diameter, class bore_fit (a bottoming reamer in a blind bore), taking ream_stock; "
+        "press the plug, class plug_fit, plug_length long, flush with the face.",
+        "Fits are ISO 286-2 hole-basis limits (bore_min .. bore_max, plug_min .. plug_max); "
+        "interference_min .. interference_max is what a bore and a plug inside them give. Measure both "
+        "before pressing.",
+    ]
+    if u == "in":
+        lines.append("Inch fit limits are the metric ISO limits rounded inwards to 0.00001 in, so a part "
+                     "inside them is inside the metric limits.")
+    lines += _plug_lines(job, doc)
+    lines.append("mass_change and unbalance_change: what each feature does to its web, in the web frame "
+                 "(seen from the outer face).")
+    lines += [f"CAUTION: {c}" for c in doc.get("cautions", [])]
+    lines.append("CAUTION: a press fit alone is not a rated retention; the plug also needs the retention "
+                 "method the report asks for.")
+    return lines
