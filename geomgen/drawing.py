@@ -29,8 +29,8 @@ TABLE_GAP = 3.0       # mm between one table and the next
 GAP_MM = 40.0         # mm between one web's drawing (or table) and the next
 #: width of a character when sizing columns, mm: wide enough for LibreCAD's "standard" font (its average
 #: advance is 0.72 of the height) and for the txt font of other readers
-CHAR_W = 0.75 * TEXT_H
-COLUMN_PAD = 2.0      # mm between columns
+CHAR_W = 0.8 * TEXT_H
+COLUMN_PAD = 4.0      # mm between columns
 
 _LAYERS = {"OUTLINE": 7, "BORES": 8, "FEATURES": 1, "COM": 3, "AXES": 5, "TABLE": 7, "DIMS": DIM_COLOUR}
 
@@ -54,8 +54,9 @@ def _text(msp, text: str, at, *, layer: str, height: float = TEXT_H, align: str 
 
 
 def add_loop(msp, loop, *, offset, layer: str, linetype: str | None = None):
-    """One closed loop: a CIRCLE if it is one, else a closed LWPOLYLINE with
-    bulges (bulge = tan(sweep / 4), positive counter-clockwise) for its arcs."""
+    """One closed loop: a CIRCLE if it is one (drawn solid), else a closed
+    LWPOLYLINE with bulges (bulge = tan(sweep / 4), positive counter-clockwise)
+    for its arcs; a dashed circle is a closed LWPOLYLINE of two half circles."""
     from .loops import Arc
 
     attribs = {"layer": layer}
@@ -63,8 +64,13 @@ def add_loop(msp, loop, *, offset, layer: str, linetype: str | None = None):
         attribs["linetype"] = linetype
     ox, oy = offset
     c = loop.as_circle()
-    if c is not None:
+    if c is not None and not linetype:
         return msp.add_circle((c[0] + ox, c[1] + oy), c[2], dxfattribs=attribs)
+    if c is not None:
+        # LibreCAD prints a CIRCLE solid whatever its line type; two half-circle bulges it dashes
+        x, y, r = c[0] + ox, c[1] + oy, c[2]
+        return msp.add_lwpolyline([(x + r, y, 1.0), (x - r, y, 1.0)], format="xyb", close=True,
+                                  dxfattribs=attribs)
     pts = []
     for seg in loop.segments:
         bulge = math.tan(math.radians(seg.sweep_deg) / 4.0) if isinstance(seg, Arc) else 0.0
@@ -103,10 +109,16 @@ def _dims(msp, f, *, offset, layer: str) -> None:
                                          dxfattribs=attribs)
                 dim.render()
                 _say_prefix(dim, "R")
-        start = f.angle_start + 90.0
-        msp.add_angular_dim_cra(center=(ox, oy), radius=f.r_outer, start_angle=start,
-                                end_angle=start + f.span_deg, distance=6.0, dimstyle=DIM_STYLE,
-                                dxfattribs=attribs).render()
+        # the span between the pocket's two radial lines (a 2-line angular dimension: LibreCAD draws
+        # no 3-point one), its arc 6 mm outside the outer radius
+        start = math.radians(f.angle_start + 90.0)
+        end = start + math.radians(f.span_deg)
+        centre = (ox, oy)
+        ends = [(ox + f.r_outer * math.cos(a), oy + f.r_outer * math.sin(a)) for a in (start, end)]
+        half = 0.5 * (start + end)
+        base = (ox + (f.r_outer + 6.0) * math.cos(half), oy + (f.r_outer + 6.0) * math.sin(half))
+        msp.add_angular_dim_2l(base=base, line1=(centre, ends[0]), line2=(centre, ends[1]),
+                               dimstyle=DIM_STYLE, dxfattribs=attribs).render()
 
 
 def _com_marker(msp, com, *, offset, layer: str, label: str, left: bool) -> None:
