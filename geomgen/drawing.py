@@ -102,10 +102,12 @@ def _dims(msp, f, *, offset, layer: str) -> None:
         dim.render()
         _say_prefix(dim, "\u00d8")
     elif isinstance(f, Pocket):
-        mid = f.angle_start + 0.5 * f.span_deg + 90.0           # math angle of the kidney's middle
-        for r, turn in ((f.r_outer, 4.0), (f.r_inner, -4.0)):
+        # the radii a fifth of the span in from each end, clear of the span's text in the middle
+        first = f.angle_start + 90.0                              # math angle of the start radial line
+        for r, share in ((f.r_outer, 0.8), (f.r_inner, 0.2)):
             if r > 0:
-                dim = msp.add_radius_dim(center=(ox, oy), radius=r, angle=mid + turn, dimstyle=DIM_STYLE,
+                dim = msp.add_radius_dim(center=(ox, oy), radius=r, angle=first + share * f.span_deg,
+                                         dimstyle=DIM_STYLE,
                                          dxfattribs=attribs)
                 dim.render()
                 _say_prefix(dim, "R")
