@@ -7,7 +7,10 @@ says by how much.  Each web has its own layers (`<web>-OUTLINE`, `-BORES`,
 `-FEATURES`, `-COM`, `-AXES`, `-TABLE`, `-DIMS`); features cut from the inner
 face are drawn dashed where they lie in the web frame.  Holes and plugs are
 CIRCLEs, kidney pockets one closed LWPOLYLINE of exact arcs (bulges) and
-lines, so CAM can pick each as one contour.  Units: mm ($INSUNITS = 4).
+lines, so CAM can pick each as one contour.  Under each web one table per
+feature kind (geomgen.drawing_tables); the numbers tagged on the view are
+the steps of operations.csv.  Units: mm ($INSUNITS = 4); styles in
+geomgen.drawing_style.
 """
 
 from __future__ import annotations
@@ -15,41 +18,21 @@ from __future__ import annotations
 import io
 import math
 
+from .drawing_style import DIM_COLOUR, DIM_STYLE, new_document
+from .drawing_tables import HEADINGS, NOTES, web_rows
 from .features import Hole, Plug, Pocket, footprint
 
 TEXT_H = 2.5          # mm, table and label text
 TITLE_H = 4.0         # mm
 ROW_H = 4.2           # mm between table lines
+TABLE_GAP = 3.0       # mm between one table and the next
 GAP_MM = 40.0         # mm between one web's drawing (or table) and the next
-DIM_STYLE = "GEOMGEN"
+#: width of a character when sizing columns, mm: wide enough for LibreCAD's "standard" font (its average
+#: advance is 0.72 of the height) and for the txt font of other readers
+CHAR_W = 0.8 * TEXT_H
+COLUMN_PAD = 4.0      # mm between columns
 
-#: table columns: (heading, width mm)
-_TABLE = (("no", 8), ("kind", 22), ("face", 12), ("x mm", 16), ("y mm", 16), ("dia mm", 15), ("drill", 32),
-          ("depth mm", 28), ("mass g", 16), ("dU x, y g*mm", 30))
-TABLE_WIDTH = sum(w for _, w in _TABLE)
-
-_LAYERS = {"OUTLINE": 7, "BORES": 8, "FEATURES": 1, "COM": 3, "AXES": 5, "TABLE": 7, "DIMS": 4}
-
-
-def _setup(doc) -> None:
-    doc.header["$INSUNITS"] = 4          # mm
-    doc.header["$MEASUREMENT"] = 1       # metric
-    doc.header["$LUNITS"] = 2            # decimal
-    style = doc.dimstyles.duplicate_entry("EZDXF", DIM_STYLE)
-    # EZDXF's own style measures metres as cm (dimlfac 100): set it for a drawing in mm
-    style.dxf.dimlfac = 1.0
-    style.dxf.dimtxt = 2.0
-    style.dxf.dimasz = 2.0
-    style.dxf.dimexe = 1.0
-    style.dxf.dimexo = 0.6
-    style.dxf.dimgap = 0.6
-    style.dxf.dimdec = 2
-    style.dxf.dimtfac = 1.0
-    style.dxf.dimblk = ""                # closed filled arrows
-    style.dxf.dimtsz = 0.0
-    for key in ("dimclrd", "dimclre", "dimclrt"):
-        setattr(style.dxf, key, _LAYERS["DIMS"])   # dimension blocks draw BYBLOCK: colour them here
-    doc.layers.add("NOTES", color=7)
+_LAYERS = {"OUTLINE": 7, "BORES": 8, "FEATURES": 1, "COM": 3, "AXES": 5, "TABLE": 7, "DIMS": DIM_COLOUR}
 
 
 def _layers(doc, web: str) -> dict[str, str]:
@@ -71,18 +54,23 @@ def _text(msp, text: str, at, *, layer: str, height: float = TEXT_H, align: str 
 
 
 def add_loop(msp, loop, *, offset, layer: str, linetype: str | None = None):
-    """One closed loop: a CIRCLE if it is one, else a closed LWPOLYLINE with
-    bulges (bulge = tan(sweep / 4), positive counter-clockwise) for its arcs."""
+    """One closed loop: a CIRCLE if it is one (drawn solid), else a closed
+    LWPOLYLINE with bulges (bulge = tan(sweep / 4), positive counter-clockwise)
+    for its arcs; a dashed circle is a closed LWPOLYLINE of two half circles."""
     from .loops import Arc
 
     attribs = {"layer": layer}
     if linetype:
         attribs["linetype"] = linetype
-        attribs["ltscale"] = 0.5         # dashes a small hole can show
     ox, oy = offset
     c = loop.as_circle()
-    if c is not None:
+    if c is not None and not linetype:
         return msp.add_circle((c[0] + ox, c[1] + oy), c[2], dxfattribs=attribs)
+    if c is not None:
+        # LibreCAD prints a CIRCLE solid whatever its line type; two half-circle bulges it dashes
+        x, y, r = c[0] + ox, c[1] + oy, c[2]
+        return msp.add_lwpolyline([(x + r, y, 1.0), (x - r, y, 1.0)], format="xyb", close=True,
+                                  dxfattribs=attribs)
     pts = []
     for seg in loop.segments:
         bulge = math.tan(math.radians(seg.sweep_deg) / 4.0) if isinstance(seg, Arc) else 0.0
@@ -90,33 +78,17 @@ def add_loop(msp, loop, *, offset, layer: str, linetype: str | None = None):
     return msp.add_lwpolyline(pts, format="xyb", close=True, dxfattribs=attribs)
 
 
-def _depth_text(f, thickness: float) -> str:
-    if isinstance(f, Hole):
-        if f.through:
-            return "through"
-        return f"{f.depth:.2f} + {f.point_length:.2f} pt"
-    if isinstance(f, Plug):
-        return f"{f.length:.2f} flat" + (" (thru)" if f.length >= thickness - 1e-9 else "")
-    return f"{f.depth:.2f} flat"
+def _say_prefix(dim, prefix: str) -> None:
+    """Write the diameter or radius sign into the dimension text ("<>" = the measured value).
 
-
-def _table_cells(i: int, f, table: dict, *, thickness: float, drill_series: str) -> list[str]:
-    from .drills import designation
-
-    eff = table["effect"]
-    du = f"{eff['unbalance_gmm'][0]:.1f}, {eff['unbalance_gmm'][1]:.1f}"
-    if isinstance(f, Pocket):
-        return [str(i), "pocket", f.face, f"r {f.r_inner:.2f}", f"..{f.r_outer:.2f}",
-                f"rc {f.corner_radius:.2f}", f"{f.angle_start:.1f}..{f.angle_start + f.span_deg:.1f} deg",
-                _depth_text(f, thickness), f"{eff['mass_g']:.2f}", du]
-    kind = "hole" if isinstance(f, Hole) else "plug"
-    return [str(i), kind, f.face, f"{f.x:.2f}", f"{f.y:.2f}", f"{f.diameter:.2f}",
-            designation(f.diameter, drill_series), _depth_text(f, thickness), f"{eff['mass_g']:.2f}", du]
+    ezdxf's rendered block already carries the sign; LibreCAD redraws every
+    dimension from the entity and adds no sign of its own, so the entity says it."""
+    dim.dimension.dxf.text = prefix + "<>"
 
 
 def _dims(msp, f, *, offset, layer: str) -> None:
-    """Dimensions from the crank axis: the radius to a hole's centre and its
-    diameter; a pocket's two radii and its angular span."""
+    """Dimensions from the crank axis: the radius to a hole's or plug's centre
+    and its diameter; a pocket's two radii and its angular span."""
     ox, oy = offset
     attribs = {"layer": layer}
     if isinstance(f, (Hole, Plug)):
@@ -125,18 +97,30 @@ def _dims(msp, f, *, offset, layer: str) -> None:
             msp.add_aligned_dim(p1=(ox, oy), p2=(ox + f.x, oy + f.y), distance=4.0, dimstyle=DIM_STYLE,
                                 dxfattribs=attribs).render()
         ang = math.degrees(math.atan2(f.y, f.x)) + 45.0
-        msp.add_diameter_dim(center=(ox + f.x, oy + f.y), radius=0.5 * f.diameter, angle=ang,
-                             dimstyle=DIM_STYLE, dxfattribs=attribs).render()
+        dim = msp.add_diameter_dim(center=(ox + f.x, oy + f.y), radius=0.5 * f.diameter, angle=ang,
+                                   dimstyle=DIM_STYLE, dxfattribs=attribs)
+        dim.render()
+        _say_prefix(dim, "\u00d8")
     elif isinstance(f, Pocket):
-        mid = f.angle_start + 0.5 * f.span_deg + 90.0           # math angle of the kidney's middle
-        for r, turn in ((f.r_outer, 4.0), (f.r_inner, -4.0)):
+        # the radii a fifth of the span in from each end, clear of the span's text in the middle
+        first = f.angle_start + 90.0                              # math angle of the start radial line
+        for r, share in ((f.r_outer, 0.8), (f.r_inner, 0.2)):
             if r > 0:
-                msp.add_radius_dim(center=(ox, oy), radius=r, angle=mid + turn, dimstyle=DIM_STYLE,
-                                   dxfattribs=attribs).render()
-        start = f.angle_start + 90.0
-        msp.add_angular_dim_cra(center=(ox, oy), radius=f.r_outer, start_angle=start,
-                                end_angle=start + f.span_deg, distance=6.0, dimstyle=DIM_STYLE,
-                                dxfattribs=attribs).render()
+                dim = msp.add_radius_dim(center=(ox, oy), radius=r, angle=first + share * f.span_deg,
+                                         dimstyle=DIM_STYLE,
+                                         dxfattribs=attribs)
+                dim.render()
+                _say_prefix(dim, "R")
+        # the span between the pocket's two radial lines (a 2-line angular dimension: LibreCAD draws
+        # no 3-point one), its arc 6 mm outside the outer radius
+        start = math.radians(f.angle_start + 90.0)
+        end = start + math.radians(f.span_deg)
+        centre = (ox, oy)
+        ends = [(ox + f.r_outer * math.cos(a), oy + f.r_outer * math.sin(a)) for a in (start, end)]
+        half = 0.5 * (start + end)
+        base = (ox + (f.r_outer + 6.0) * math.cos(half), oy + (f.r_outer + 6.0) * math.sin(half))
+        msp.add_angular_dim_2l(base=base, line1=(centre, ends[0]), line2=(centre, ends[1]),
+                               dimstyle=DIM_STYLE, dxfattribs=attribs).render()
 
 
 def _com_marker(msp, com, *, offset, layer: str, label: str, left: bool) -> None:
@@ -149,34 +133,53 @@ def _com_marker(msp, com, *, offset, layer: str, label: str, left: bool) -> None
           align="MIDDLE_RIGHT" if left else "MIDDLE_LEFT")
 
 
-def web_pitch(webs) -> list[float]:
+def column_widths(kind: str, rows) -> list[float]:
+    """Width of each column of a kind's table, mm: its longest cell or heading, plus a gap."""
+    heads = HEADINGS[kind]
+    return [max([len(p) for p in heads[j]] + [len(r.cells[j]) for r in rows]) * CHAR_W + COLUMN_PAD
+            for j in range(len(heads))]
+
+
+def _summary_lines(entry: dict) -> list[str]:
+    before, after = entry["before"]["com_mm"], entry["predicted"]["com_mm"]
+    return [
+        f"target unbalance {entry['target_gmm'][0]:.1f}, {entry['target_gmm'][1]:.1f} g*mm, "
+        f"tolerance +/-{entry['tolerance_gmm']:.1f} g*mm",
+        f"predicted {entry['predicted']['unbalance_gmm'][0]:.1f}, {entry['predicted']['unbalance_gmm'][1]:.1f} g*mm",
+        f"COM before {before[0]:.2f}, {before[1]:.2f} mm ({entry['before']['mass_g']:.1f} g); "
+        f"after {after[0]:.2f}, {after[1]:.2f} mm ({entry['predicted']['mass_g']:.1f} g)",
+        "no = step on operations.csv; existing = already on the web, check it;",
+        "new = machine it; x, y in the web frame seen from the outer face",
+    ]
+
+
+def block_width(entry: dict, tables: dict) -> float:
+    """The width of the text under one web, mm: its widest table, table note or summary line."""
+    widths = [max(sum(column_widths(k, rows)), len(NOTES[k]) * CHAR_W) for k, rows in tables.items()]
+    widths += [len(line) * CHAR_W for line in _summary_lines(entry)]
+    return max(widths)
+
+
+def web_pitch(webs, table_widths) -> list[float]:
     """x offset of each web's crank axis, mm: each clears the web (or table) before it by GAP_MM."""
-    offsets, x = [], 0.0
-    prev_right = None
-    for w in webs:
+    offsets, prev_right = [], None
+    for w, width in zip(webs, table_widths):
         r = w.section.rim_radius_max
-        if prev_right is None:
-            x = 0.0
-        else:
-            x = prev_right + GAP_MM + r
+        x = 0.0 if prev_right is None else prev_right + GAP_MM + r
         offsets.append(x)
-        prev_right = x + max(r, TABLE_WIDTH - r)
+        prev_right = x + max(r, width - r)
     return offsets
 
 
-def _draw_web(msp, doc, w, entry: dict, *, offset, drill_series: str) -> None:
-    lay = _layers(doc, w.spec.name)
+def _draw_view(msp, doc, w, entry: dict, *, offset, lay: dict) -> None:
     ox, oy = offset
     sec = w.section
     add_loop(msp, sec.outer, offset=offset, layer=lay["OUTLINE"])
     for bore in sec.bores:
         add_loop(msp, bore, offset=offset, layer=lay["BORES"])
-
-    tables = entry["existing_features"] + entry["planned_features"]
-    n_existing = len(w.existing)
-    for i, (f, table) in enumerate(zip(w.all_features, tables), start=1):
-        fp = footprint(f)
-        add_loop(msp, fp, offset=offset, layer=lay["FEATURES"], linetype="DASHED" if f.face == "inner" else None)
+    for step, f in enumerate(w.all_features, start=1):
+        add_loop(msp, footprint(f), offset=offset, layer=lay["FEATURES"],
+                 linetype="DASHED" if f.face == "inner" else None)
         if isinstance(f, Pocket):
             mid = math.radians(f.angle_start + 0.5 * f.span_deg + 90.0)
             rm = 0.5 * (f.r_inner + f.r_outer)
@@ -187,8 +190,7 @@ def _draw_web(msp, doc, w, entry: dict, *, offset, drill_series: str) -> None:
             ux, uy = (f.x / r, f.y / r) if r > 1e-6 else (0.0, 1.0)
             reach = 0.5 * f.diameter + 3.5
             tag_at = (ox + f.x + ux * reach, oy + f.y + uy * reach)
-        tag = f"{'E' if i <= n_existing else ''}{i}"
-        _text(msp, tag, tag_at, layer=lay["FEATURES"], height=3.0, align="MIDDLE_CENTER")
+        _text(msp, str(step), tag_at, layer=lay["FEATURES"], height=3.0, align="MIDDLE_CENTER")
         _dims(msp, f, offset=offset, layer=lay["DIMS"])
 
     r_rim = sec.rim_radius_max
@@ -202,12 +204,42 @@ def _draw_web(msp, doc, w, entry: dict, *, offset, drill_series: str) -> None:
     _text(msp, "crankpin (+Y)", (ox + 1.5, oy + r_rim + 9), layer=lay["AXES"], align="BOTTOM_LEFT")
     _text(msp, "counterweight (-Y)", (ox + 1.5, oy - r_rim - 9), layer=lay["AXES"], align="TOP_LEFT")
     _text(msp, "crank axis", (ox + 9, oy + 1.0), layer=lay["AXES"], height=2.0, align="BOTTOM_LEFT")
-
     before, after = entry["before"]["com_mm"], entry["predicted"]["com_mm"]
     _com_marker(msp, before, offset=offset, layer=lay["COM"], label="COM before", left=True)
     _com_marker(msp, after, offset=offset, layer=lay["COM"], label="COM after", left=False)
 
-    # title above, table below
+
+def _draw_tables(msp, tables: dict, *, x0: float, y: float, layer: str) -> float:
+    """The tables from (x0, y) down; returns the y below the last one."""
+    for kind, rows in tables.items():
+        _text(msp, NOTES[kind], (x0, y), layer=layer)
+        y -= ROW_H
+        xs = [x0]
+        for width in column_widths(kind, rows)[:-1]:
+            xs.append(xs[-1] + width)
+        for line in (0, 1):
+            for x, head in zip(xs, HEADINGS[kind]):
+                if head[line]:
+                    _text(msp, head[line], (x, y), layer=layer)
+            y -= ROW_H
+        for row in rows:
+            for x, cell in zip(xs, row.cells):
+                _text(msp, cell, (x, y), layer=layer)
+            y -= ROW_H
+        y -= TABLE_GAP
+    if not tables:
+        _text(msp, "no features", (x0, y), layer=layer)
+        y -= ROW_H
+    return y
+
+
+def _draw_web(msp, doc, w, entry: dict, tables: dict, *, offset) -> float:
+    """One web: view, title, summary and tables; returns the lowest y used."""
+    lay = _layers(doc, w.spec.name)
+    ox, oy = offset
+    sec = w.section
+    _draw_view(msp, doc, w, entry, offset=offset, lay=lay)
+    r_rim = sec.rim_radius_max
     top = oy + r_rim + 22
     _text(msp, f"web {w.spec.name}: seen from the outer face, web frame, mm", (ox - r_rim, top),
           layer=lay["TABLE"], height=TITLE_H)
@@ -215,56 +247,16 @@ def _draw_web(msp, doc, w, entry: dict, *, offset, drill_series: str) -> None:
                "dashed = cut from the inner face", (ox - r_rim, top - 6), layer=lay["TABLE"])
     y = oy - r_rim - 22
     x0 = ox - r_rim
-    lines = [
-        f"target unbalance {entry['target_gmm'][0]:.1f}, {entry['target_gmm'][1]:.1f} g*mm; predicted "
-        f"{entry['predicted']['unbalance_gmm'][0]:.1f}, {entry['predicted']['unbalance_gmm'][1]:.1f} g*mm; "
-        f"tolerance +/-{entry['tolerance_gmm']:.1f} g*mm",
-        f"COM before {before[0]:.2f}, {before[1]:.2f} mm ({entry['before']['mass_g']:.1f} g); "
-        f"COM after {after[0]:.2f}, {after[1]:.2f} mm ({entry['predicted']['mass_g']:.1f} g)",
-        "feature table (E = already on the web; x, y in the web frame seen from the outer face):",
-    ]
+    lines = _summary_lines(entry)
     for line in lines:
         _text(msp, line, (x0, y), layer=lay["TABLE"])
         y -= ROW_H
-    xs = [x0]
-    for _, width in _TABLE[:-1]:
-        xs.append(xs[-1] + width)
-    for x, (head, _) in zip(xs, _TABLE):
-        _text(msp, head, (x, y), layer=lay["TABLE"])
-    y -= ROW_H
-    for i, (f, table) in enumerate(zip(w.all_features, tables), start=1):
-        cells = _table_cells(i, f, table, thickness=sec.thickness, drill_series=drill_series)
-        cells[0] = f"{'E' if i <= n_existing else ''}{i}"
-        for x, cell in zip(xs, cells):
-            _text(msp, cell, (x, y), layer=lay["TABLE"])
-        y -= ROW_H
-    if not tables:
-        _text(msp, "no features", (x0, y), layer=lay["TABLE"])
+    return _draw_tables(msp, tables, x0=x0, y=y - 1.0, layer=lay["TABLE"])
 
 
-def drawing_dxf(*, job, doc: dict, webs) -> bytes:
-    """The DXF (R2010, mm) as bytes.
-
-    job : geomgen.job.Job;  doc : the plan.json dict;  webs : pipeline.WebWork list.
-    """
+def _write(dxf) -> bytes:
     import ezdxf
 
-    dxf = ezdxf.new("R2010", setup=True)
-    _setup(dxf)
-    msp = dxf.modelspace()
-    offsets = web_pitch(webs)
-    for w, entry, ox in zip(webs, doc["webs"], offsets):
-        _draw_web(msp, dxf, w, entry, offset=(ox, 0.0), drill_series=job.correction.drill_series)
-    top = max(w.section.rim_radius_max for w in webs) + 40
-    _text(msp, f"geomgen correction drawing, job: {job.name}; all dimensions in mm", (-webs[0].section.rim_radius_max, top),
-          layer="NOTES", height=TITLE_H + 1)
-    spacing = "; ".join(f"web {w.spec.name} crank axis at x = {ox:.1f} mm" for w, ox in zip(webs, offsets))
-    _text(msp, f"webs drawn side by side, each in its own frame: {spacing}", (-webs[0].section.rim_radius_max, top - 7),
-          layer="NOTES")
-    bottom = -max(w.section.rim_radius_max for w in webs) - 40 - ROW_H * (4 + max(len(w.all_features) for w in webs))
-    for k, line in enumerate(doc.get("cautions", [])):
-        _text(msp, ("CAUTION: " if k == 0 else "") + line, (-webs[0].section.rim_radius_max, bottom - k * ROW_H),
-              layer="NOTES")
     stream = io.StringIO()
     # ezdxf stamps the time and random GUIDs on every save; its fixed metadata keeps the file
     # the same for the same job (the option is process-wide: put it back)
@@ -278,3 +270,30 @@ def drawing_dxf(*, job, doc: dict, webs) -> bytes:
     finally:
         ezdxf.options.write_fixed_meta_data_for_testing = keep
     return stream.getvalue().encode("utf-8")
+
+
+def drawing_dxf(*, job, doc: dict, webs) -> bytes:
+    """The DXF (R2010, mm) as bytes.
+
+    job : geomgen.job.Job;  doc : the plan.json dict;  webs : pipeline.WebWork list.
+    """
+    dxf = new_document()
+    dxf.layers.add("NOTES", color=7)
+    msp = dxf.modelspace()
+    rho = job.correction.plug_material.density if job.correction.plug_material is not None else None
+    tables = [web_rows(w, entry, drill_series=job.correction.drill_series, default_plug_density=rho)
+              for w, entry in zip(webs, doc["webs"])]
+    offsets = web_pitch(webs, [block_width(e, t) for e, t in zip(doc["webs"], tables)])
+    lowest = 0.0
+    for w, entry, table, ox in zip(webs, doc["webs"], tables, offsets):
+        lowest = min(lowest, _draw_web(msp, dxf, w, entry, table, offset=(ox, 0.0)))
+    left = -webs[0].section.rim_radius_max
+    top = max(w.section.rim_radius_max for w in webs) + 40
+    _text(msp, f"geomgen correction drawing, job: {job.name}; all dimensions in mm", (left, top),
+          layer="NOTES", height=TITLE_H + 1)
+    spacing = "; ".join(f"web {w.spec.name} crank axis at x = {ox:.1f} mm" for w, ox in zip(webs, offsets))
+    _text(msp, f"webs drawn side by side, each in its own frame: {spacing}", (left, top - 7), layer="NOTES")
+    bottom = lowest - 2 * ROW_H
+    for k, line in enumerate(doc.get("cautions", [])):
+        _text(msp, ("CAUTION: " if k == 0 else "") + line, (left, bottom - k * ROW_H), layer="NOTES")
+    return _write(dxf)
