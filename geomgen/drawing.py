@@ -281,7 +281,8 @@ def drawing_dxf(*, job, doc: dict, webs) -> bytes:
     dxf.layers.add("NOTES", color=7)
     msp = dxf.modelspace()
     rho = job.correction.plug_material.density if job.correction.plug_material is not None else None
-    tables = [web_rows(w, entry, drill_series=job.correction.drill_series, default_plug_density=rho)
+    tables = [web_rows(w, entry, drill_series=job.correction.drill_series, default_plug_density=rho,
+                       plug_fit=job.correction.plug_fit)
               for w, entry in zip(webs, doc["webs"])]
     offsets = web_pitch(webs, [block_width(e, t) for e, t in zip(doc["webs"], tables)])
     lowest = 0.0

@@ -18,6 +18,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from .drills import designation
+from .fits import DEFAULT_FIT
 from .features import Hole, Plug, Pocket, plug_density_of
 
 KINDS = ("hole", "pocket", "plug")
@@ -40,7 +41,7 @@ HOLE_COLUMNS, POCKET_COLUMNS, PLUG_COLUMNS = COLUMNS["hole"], COLUMNS["pocket"],
 NOTES = {
     "hole": "holes: drill travel = to the tip of the drill point",
     "pocket": "kidney pockets, flat floor; angles from +Y, counter-clockwise",
-    "plug": "plugs: bores flat-bottomed, reamed to the plug's fit; plug flush with the face",
+    "plug": "plugs: bores reamed to the ISO 286 class shown (press fit, limits on operations.csv); plug flush",
 }
 
 
@@ -68,7 +69,7 @@ def _effect(table: dict) -> tuple[str, str]:
 
 
 def feature_row(feature, *, step: int, status: str, table: dict, thickness: float, drill_series: str,
-                default_plug_density: float | None = None) -> Row:
+                default_plug_density: float | None = None, plug_fit: str = DEFAULT_FIT) -> Row:
     """The row of `feature` (a geomgen.features type) for its kind's table.
 
     table : its plan.json entry (for the "effect");  thickness : web, mm;
@@ -91,19 +92,26 @@ def feature_row(feature, *, step: int, status: str, table: dict, thickness: floa
         through = feature.length >= thickness - 1e-9
         rho = plug_density_of(feature) if (feature.material or feature.density) else default_plug_density
         return Row("plug", head + (_mm(feature.x), _mm(feature.y), _mm(feature.diameter),
-                                   "reamed, through" if through else "reamed, flat bottom", _mm(feature.length),
+                                   f"{_bore_class(plug_fit)} reamed, " + ("through" if through else "flat bottom"),
+                                   _mm(feature.length),
                                    feature.material or "custom", f"{rho:.2f}" if rho is not None else "",
                                    _mm(feature.length), mass, unbalance))
     raise TypeError(f"not a feature: {feature!r}")
 
 
-def web_rows(web, entry: dict, *, drill_series: str, default_plug_density: float | None = None) -> dict[str, list[Row]]:
+def _bore_class(fit: str) -> str:
+    return fit.split("/")[0]
+
+
+def web_rows(web, entry: dict, *, drill_series: str, default_plug_density: float | None = None,
+             plug_fit: str = DEFAULT_FIT) -> dict[str, list[Row]]:
     """{kind: rows} of one web (pipeline.WebWork and its plan.json entry), kinds with no rows left out."""
     tables = entry["existing_features"] + entry["planned_features"]
     statuses = ["existing"] * len(web.existing) + ["new"] * (len(tables) - len(web.existing))
     out: dict[str, list[Row]] = {}
     for step, (feature, table, status) in enumerate(zip(web.all_features, tables, statuses), start=1):
         row = feature_row(feature, step=step, status=status, table=table, thickness=web.section.thickness,
-                          drill_series=drill_series, default_plug_density=default_plug_density)
+                          drill_series=drill_series, default_plug_density=default_plug_density,
+                          plug_fit=plug_fit)
         out.setdefault(row.kind, []).append(row)
     return {k: out[k] for k in KINDS if k in out}
