@@ -4,8 +4,11 @@ OpenCascade (OCP), cadquery and trimesh are imported inside the functions.
 Every writer takes a folder or path it is given and writes only there (the
 command line writes into a temporary folder and moves it into place).
 
-STEP: AP214, millimetres, one named solid per body/plug, body first; a
-header naming the file and geomgen (not the kernel's defaults).  The
+STEP: AP214, millimetres, one named solid per body/plug, body first, each
+its own product with its placement built into its geometry ("body",
+"plug-1", ... in a web file; "web-a body", "web-a plug-1", ... in
+crank.step, names from geomgen.solid); a header naming the file and geomgen
+(not the kernel's defaults).  The
 schema and unit are process-wide settings of OpenCascade, so each export sets
 them and puts the previous values back.
 

@@ -171,3 +171,24 @@ def test_step_header_names_the_file_and_geomgen(built, file):
     read = step_header(built / file)
     assert (read["name"], read["author"], read["organization"]) == (file, [""], [""])
     assert read["originating_system"] == read["preprocessor_version"] == f"geomgen {__version__}"
+
+
+@pytest.mark.cad
+def test_two_placements_of_one_shape_stay_two_solids(tmp_path):
+    """The writer's own guard: the same shape given twice, once moved, is two
+    solids in the file, each where it was put (closed form: a 10 mm cube,
+    V = 1000 mm^3, centre moved by the translation)."""
+    import cadquery as cq
+
+    from geomgen.export import read_step, write_step
+    from geomgen.verify import solid_massprops
+
+    cube = cq.Solid.makeBox(10, 10, 10)
+    moved = cube.moved(cq.Location(cq.Vector(30, 0, -5)))
+    write_step([("one", cube), ("two", moved), ("three", cube)], tmp_path / "t.step")
+    back = read_step(tmp_path / "t.step")
+    assert [n for n, _ in back] == ["one", "two", "three"]
+    props = [solid_massprops(s, 1.0) for _, s in back]
+    assert [p.volume for p in props] == pytest.approx([1000.0] * 3, rel=1e-12)
+    assert [tuple(p.com) for p in props] == [pytest.approx(c, abs=1e-9)
+                                             for c in ((5, 5, 5), (35, 5, 0), (5, 5, 5))]
