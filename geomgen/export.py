@@ -4,9 +4,13 @@ OpenCascade (OCP), cadquery and trimesh are imported inside the functions.
 Every writer takes a folder or path it is given and writes only there (the
 command line writes into a temporary folder and moves it into place).
 
-STEP: AP214, millimetres, one named solid per body/plug, body first.  The
+STEP: AP214, millimetres, one named solid per body/plug, body first, each
+its own product with its placement built into its geometry ("body",
+"plug-1", ... in a web file; "web-a body", "web-a plug-1", ... in
+crank.step, names from geomgen.solid); a header naming the file and geomgen
+(not the kernel's defaults).  The
 schema and unit are process-wide settings of OpenCascade, so each export sets
-them and puts the previous values back (craft.md).
+them and puts the previous values back.
 
 STL: binary, one file for the body and one for all plugs.  The shape's old
 triangulation is cleared first (a shape keeps its first mesh), the mesh is
@@ -55,12 +59,64 @@ def _shape(obj):
     return obj.wrapped if hasattr(obj, "wrapped") else obj
 
 
-def write_step(solids, path) -> Path:
+#: FILE_NAME author and organization: geomgen does not know the person or the shop,
+#: and an empty string is what ISO 10303-21 writes for a value not given
+STEP_AUTHOR = ""
+STEP_ORGANIZATION = ""
+
+
+def _standalone(shapes):
+    """Each shape as its own TopoDS_Shape with no placement and no shared
+    topology: the STEP writer turns a second placement of a shape it has
+    already seen into a reference to the first, and readers then see one
+    solid where two were meant."""
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_Copy, BRepBuilderAPI_Transform
+    from OCP.TopLoc import TopLoc_Location
+
+    seen, out = [], []
+    for shape in shapes:
+        raw = _shape(shape)
+        if not raw.Location().IsIdentity():
+            trsf = raw.Location().Transformation()
+            bare = raw.Located(TopLoc_Location())
+            raw = BRepBuilderAPI_Transform(bare, trsf, True).Shape()
+        elif any(raw.IsPartner(s) for s in seen):
+            raw = BRepBuilderAPI_Copy(raw, True, False).Shape()
+        seen.append(raw)
+        out.append(raw)
+    return out
+
+
+def _set_header(writer, *, file_name: str, description: str) -> None:
+    """FILE_NAME and FILE_DESCRIPTION of the STEP header: the file's own
+    name, geomgen as the originating system and preprocessor, author and
+    organization left empty.  Transfer() has already put OpenCascade's
+    default header on the model; MakeHeader(model) edits it in place and
+    Write() keeps a header that is there."""
+    from OCP.APIHeaderSection import APIHeaderSection_MakeHeader
+    from OCP.TCollection import TCollection_HAsciiString
+
+    from . import __version__
+
+    header = APIHeaderSection_MakeHeader(writer.ChangeWriter().Model())
+    me = f"geomgen {__version__}"
+    header.SetName(TCollection_HAsciiString(file_name))
+    header.SetAuthorValue(1, TCollection_HAsciiString(STEP_AUTHOR))
+    header.SetOrganizationValue(1, TCollection_HAsciiString(STEP_ORGANIZATION))
+    header.SetOriginatingSystem(TCollection_HAsciiString(me))
+    header.SetPreprocessorVersion(TCollection_HAsciiString(me))
+    header.SetAuthorisation(TCollection_HAsciiString(""))
+    header.SetDescriptionValue(1, TCollection_HAsciiString(description))
+
+
+def write_step(solids, path, *, description: str | None = None) -> Path:
     """Write named solids to one STEP file.
 
     solids : sequence of (name, shape) (cadquery Shape or TopoDS_Shape), in
-             the order wanted in the file (body first)
+             the order wanted in the file (body first); each becomes its own
+             product, at the place its shape says
     path : the file to write
+    description : FILE_DESCRIPTION text; default "geomgen <stem>: <the solids' names>"
     """
     from OCP.IFSelect import IFSelect_RetDone
     from OCP.STEPCAFControl import STEPCAFControl_Writer
@@ -70,10 +126,11 @@ def write_step(solids, path) -> Path:
     from OCP.TDocStd import TDocStd_Document
     from OCP.XCAFDoc import XCAFDoc_DocumentTool
 
+    solids = list(solids)
     doc = TDocStd_Document(TCollection_ExtendedString("XmlOcaf"))
     tool = XCAFDoc_DocumentTool.ShapeTool_s(doc.Main())
-    for name, shape in solids:
-        label = tool.AddShape(_shape(shape), False)
+    for (name, _), shape in zip(solids, _standalone([s for _, s in solids])):
+        label = tool.AddShape(shape, False)
         TDataStd_Name.Set_s(label, TCollection_ExtendedString(str(name)))
     path = Path(path)
     with _StepSettings():
@@ -81,10 +138,41 @@ def write_step(solids, path) -> Path:
         writer.SetNameMode(True)
         if not writer.Transfer(doc, STEPControl_AsIs):
             raise VerificationFailed(f"{path.name}: the STEP writer refused the shapes")
+        if description is None:
+            names = [str(n) for n, _ in solids]
+            description = f"geomgen {path.stem}: " + ", ".join(names[:8]) + (", ..." if len(names) > 8 else "")
+        _set_header(writer, file_name=path.name, description=description)
         status = writer.Write(str(path))
     if status != IFSelect_RetDone:
         raise VerificationFailed(f"{path.name}: the STEP writer failed (status {status})")
     return path
+
+
+def step_header(path) -> dict:
+    """The FILE_NAME and FILE_DESCRIPTION fields of a STEP file's header, as
+    OpenCascade reads them back: {"name", "time_stamp", "author",
+    "organization", "preprocessor_version", "originating_system",
+    "authorisation", "description"} (author, organization, description: lists)."""
+    from OCP.APIHeaderSection import APIHeaderSection_MakeHeader
+    from OCP.IFSelect import IFSelect_RetDone
+    from OCP.STEPControl import STEPControl_Reader
+
+    from .errors import BadInput
+
+    reader = STEPControl_Reader()
+    if reader.ReadFile(str(path)) != IFSelect_RetDone:
+        raise BadInput(f"{path}: not a readable STEP file")
+    h = APIHeaderSection_MakeHeader(reader.StepModel())
+
+    def text(s):
+        return "" if s is None else s.ToCString()
+
+    return {"name": text(h.Name()), "time_stamp": text(h.TimeStamp()),
+            "author": [text(h.AuthorValue(i)) for i in range(1, h.NbAuthor() + 1)],
+            "organization": [text(h.OrganizationValue(i)) for i in range(1, h.NbOrganization() + 1)],
+            "preprocessor_version": text(h.PreprocessorVersion()),
+            "originating_system": text(h.OriginatingSystem()), "authorisation": text(h.Authorisation()),
+            "description": [text(h.DescriptionValue(i)) for i in range(1, h.NbDescription() + 1)]}
 
 
 def read_step(path) -> list[tuple[str, object]]:
@@ -196,7 +284,8 @@ def export_web(web, folder, *, tolerance: float = STL_TOLERANCE_MM,
     into `folder`; returns {"step": path, "stl": path, "plugs_stl": path?}."""
     folder = Path(folder)
     stem = f"web-{web.name}"
-    out = {"step": write_step([(n, s) for n, s, _ in web.solids()], folder / f"{stem}.step"),
+    out = {"step": write_step([(n, s) for n, s, _ in web.solids()], folder / f"{stem}.step",
+                              description=f"geomgen web {web.name}: body and plugs in the web frame"),
            "stl": write_stl(web.body, folder / f"{stem}.stl", tolerance=tolerance,
                             angular_tolerance=angular_tolerance)}
     if web.plugs:
@@ -206,5 +295,7 @@ def export_web(web, folder, *, tolerance: float = STL_TOLERANCE_MM,
 
 
 def write_crank_step(solids, path) -> Path:
-    """crank.step from `solid.crank_assembly` output: (name, shape, density)."""
-    return write_step([(n, s) for n, s, _ in solids], path)
+    """crank.step from `solid.crank_assembly` output: (name, shape, density),
+    every body and plug of both webs its own named solid, in the crank frame."""
+    return write_step([(n, s) for n, s, _ in solids], path,
+                      description="geomgen crank: both webs in the crank frame, the frame of web a")

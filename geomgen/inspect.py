@@ -26,7 +26,7 @@ from .units import to_internal
 
 #: default material of a web body when neither --density nor --material is given
 DEFAULT_MATERIAL = "steel"
-#: default material of a solid named "plug-N" in a STEP file (the job's default plug_material)
+#: default material of a plug solid ("plug-N", "web-a plug-N") in a STEP file (the job's default plug_material)
 DEFAULT_PLUG_MATERIAL = "W-alloy-class-3"
 
 SOURCES = {
@@ -171,13 +171,17 @@ def _inspect_dxf(path: Path, *, thickness, density, material_name, units) -> dic
 
 
 def _step_densities(names: list[str], density, material_name):
-    """[(g/cm^3, label)] per solid: plugs ("plug-N") at the default plug alloy
-    unless the file holds one solid, every other solid at the given density."""
+    """[(g/cm^3, label)] per solid: plugs at the default plug alloy unless the
+    file holds one solid, every other solid at the given density.  A plug is
+    named as geomgen names it: "plug-1" in a web file, "web-a plug-1" in a
+    crank file (geomgen.solid.solid_part)."""
+    from .solid import PLUG, solid_part
+
     body = _density(density, material_name)
     if len(names) == 1:
         return [body]
     plug = _density(None, None, default=DEFAULT_PLUG_MATERIAL, default_how="default for plugs")
-    return [plug if n.lower().startswith("plug") else body for n in names]
+    return [plug if solid_part(n) == PLUG else body for n in names]
 
 
 def _inspect_step(path: Path, *, density, material_name) -> dict:

@@ -444,7 +444,7 @@ def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
     out, solids, built = [], [], []
     for w in webs:
         twin = next((i for i, b in enumerate(built) if b.section == w.section
-                     and b.all_features == w.all_features), None)
+                     and b.all_features == w.all_features and b.existing == w.existing), None)
         if twin is not None:
             solid = dataclasses.replace(solids[twin], name=w.spec.name)
             stem_old, stem = f"web-{webs[twin].spec.name}", f"web-{w.spec.name}"
@@ -454,15 +454,17 @@ def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
                 if name.endswith(".stl"):
                     shutil.copyfile(folder / name, folder / name.replace(stem_old, stem, 1))
                     files.append(name.replace(stem_old, stem, 1))
-            v = dict(out[twin], files=sorted(files))
+            v = dict(out[twin], files=sorted(files), wall_warnings=solid.wall_warnings)
         else:
-            # the solid's own wall check, independent of the planner, holds every web to the job's walls
+            # the solid's own wall check, independent of the planner, holds new features to the job's
+            # walls; the web's existing features are facts: their thin walls are warnings
             solid = build_web(w.section, w.all_features, name=w.spec.name, min_wall=job.correction.min_wall,
-                              pin_wall=job.correction.pin_wall)
+                              pin_wall=job.correction.pin_wall, existing=len(w.existing))
             paths = export_web(solid, folder, tolerance=job.output.stl_tolerance,
                                angular_tolerance=job.output.stl_angular_tolerance)
             v = verify_web(solid, w.plan.predicted, paths, tolerance=job.output.stl_tolerance)
             v["files"] = sorted(p.name for p in paths.values())
+            v["wall_warnings"] = solid.wall_warnings
         out.append(v)
         solids.append(solid)
         built.append(w)

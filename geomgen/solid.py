@@ -2,14 +2,16 @@
 
 The CAD kernel (cadquery / OpenCascade) is imported lazily inside the
 functions that build shapes, so importing this module costs nothing; the
-feature check (`check_features`) is plain shapely and never touches it.
+feature check (`check_features`, geomgen.walls) is plain shapely and never
+touches it.
 
 Frame: the contract's web frame — crank axis Z, crankpin centre on +Y,
 z = 0 at the inner face and z = thickness at the outer face, mm.
 
 Why the shapes are built the way they are:
 - every hole, pocket and plug bore is one tool of ONE boolean cut: a cut per
-  feature grows with the square of the count (craft.md);
+  feature grows with the square of the count (measured: 240 holes 0.23 s in
+  one cut, 5.5 s one at a time);
 - a tool that leaves a face is extended `_OVERSHOOT` mm beyond it, so the
   kernel never meets coplanar faces;
 - a plug is a separate solid built from the same cylinder as its bore, so it
@@ -21,22 +23,15 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-import shapely
-
 from .errors import BadInput, VerificationFailed
-from .features import Hole, Plug, Pocket, footprint, plug_density_of, z_range
+from .features import Hole, Plug, Pocket, footprint, plug_density_of
 from .loops import Arc, Line, Loop
+from .walls import MIN_SOLID_WALL_MM, WallShortfall, measure_walls  # noqa: F401  (MIN_SOLID_WALL_MM: public)
 
 #: how far a tool reaches past the face it enters, mm (avoids coplanar faces)
 _OVERSHOOT = 1.0
-#: thinnest wall the kernel is asked to make, mm: below it the cut leaves
-#: sliver faces no machine can hold (our choice, not a shop rule)
-MIN_SOLID_WALL_MM = 0.05
-#: sagitta used to flatten footprints for the plan-view wall check, mm
-_CHECK_CHORD_MM = 1e-3
-#: flattened rings lie within one chord of the true ones: a wall short by less than two is not refused
-_CHECK_SLACK_MM = 2 * _CHECK_CHORD_MM
-#: relative volume agreement demanded of a clean()ed shape (craft.md)
+#: relative volume agreement demanded of a clean()ed shape (clean() can corrupt a
+#: solid that still reports itself valid)
 _CLEAN_REL = 1e-9
 
 
@@ -66,95 +61,58 @@ class WebSolid:
     thickness: float
     plugs: tuple[PlugSolid, ...] = field(default_factory=tuple)
     features: tuple = field(default_factory=tuple)
+    wall_shortfalls: tuple[WallShortfall, ...] = field(default_factory=tuple)
 
     def solids(self) -> list[tuple[str, object, float]]:
-        """(name, shape, density g/cm^3) of every solid, body first."""
-        return [("body", self.body, self.density_g_cm3)] + [
+        """(name, shape, density g/cm^3) of every solid, body first: "body", "plug-1", ..."""
+        return [(BODY, self.body, self.density_g_cm3)] + [
             (p.name, p.shape, p.density_g_cm3) for p in self.plugs]
 
+    @property
+    def wall_warnings(self) -> list[str]:
+        """The existing features' walls thinner than the job asks, one line each."""
+        return [s.line(self.name) for s in self.wall_shortfalls]
 
-def _where(geom) -> str:
-    p = geom.representative_point() if not geom.is_empty else shapely.Point(math.nan, math.nan)
-    return f"({p.x:.2f}, {p.y:.2f}) mm"
+
+# ------------------------------------------------------------------ solid names
+#: the web material's solid in a per-web STEP file; plugs are "plug-1", "plug-2", ...
+BODY = "body"
+PLUG = "plug"
 
 
-def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_wall: float = 0.0) -> float:
-    """Refuse features that break through the rim, a face or a bore, or
-    overlap one another; return the smallest wall found, mm.
+def crank_solid_name(web: str, part: str) -> str:
+    """A solid's name in crank.step: "web-a body", "web-b plug-1"."""
+    return f"web-{web} {part}"
 
-    The check is geometric and independent of the planner: each feature is
-    its plan-view footprint swept over its z range, so the wall between two
-    features is sqrt(d_plan^2 + d_z^2), exact for such prisms (and on the
-    safe side for a drill point, counted as full diameter).
 
-    section : WebSection;  features : sequence of Hole/Pocket/Plug
-    min_wall : mm, the wall demanded (at least MIN_SOLID_WALL_MM)
-    pin_wall : mm, the wall demanded around the crankpin bore (press fit),
-               if larger than min_wall
-    Raises BadInput naming the web, the feature index and the wall.
+def solid_part(name: str) -> str:
+    """"plug" or "body": what a named solid of a geomgen STEP file is.
+
+    Reads the per-web names ("body", "plug-1"), the crank names
+    ("web-a body", "web-a plug-1") and the older crank names ("a-plug-1"):
+    a name whose last word is "plug" or "plug-N" is a plug, anything else is
+    web material.
     """
-    limit = max(float(min_wall), MIN_SOLID_WALL_MM)
-    t = float(section.thickness)
-    outer = section.outer.polygon(_CHECK_CHORD_MM)
-    bores = [b.polygon(_CHECK_CHORD_MM) for b in section.bores]
-    pin = shapely.Point(*section.pin_center)
-    pin_index = min(range(len(bores)), key=lambda k: bores[k].distance(pin)) if bores else -1
-    smallest = math.inf
+    last = str(name).strip().lower().split()[-1] if str(name).strip() else ""
+    head, _, number = last.rpartition("-")
+    if last == PLUG or (number.isdigit() and (head == PLUG or head.endswith("-" + PLUG))):
+        return PLUG
+    return BODY
 
-    def refuse(i, feature, what, wall, geom):
-        raise BadInput(f"web {name}: feature {i} ({feature.kind}) {what} at {_where(geom)}; "
-                       f"smallest wall {wall:.3g} mm, allowed >= {limit:g} mm")
 
-    prints, ranges = [], []
-    for i, f in enumerate(features):
-        fp = footprint(f).polygon(_CHECK_CHORD_MM)
-        z0, z1 = z_range(f, t)
-        prints.append(fp)
-        ranges.append((z0, z1))
-        if not outer.contains(fp):
-            refuse(i, f, "breaks through the rim", -fp.difference(outer).area ** 0.5, fp.difference(outer))
-        wall = outer.exterior.distance(fp)
-        if wall < limit - _CHECK_SLACK_MM:
-            refuse(i, f, "comes too close to the rim", wall, shapely.shortest_line(outer.exterior, fp))
-        smallest = min(smallest, wall)
-        for k, bore in enumerate(bores):
-            label = "the crankpin bore" if k == pin_index else f"bore {k}"
-            need = max(limit, float(pin_wall)) if k == pin_index else limit
-            if fp.intersects(bore):
-                refuse(i, f, f"cuts into {label}", 0.0, fp.intersection(bore))
-            wall = bore.distance(fp)
-            if wall < need - _CHECK_SLACK_MM:
-                raise BadInput(f"web {name}: feature {i} ({f.kind}) comes too close to {label} at "
-                               f"{_where(shapely.shortest_line(bore, fp))}; smallest wall {wall:.3g} mm, "
-                               f"allowed >= {need:g} mm")
-            smallest = min(smallest, wall)
-        # a blind feature must leave a floor; one reaching the far face is through
-        for floor, face in ((z0, "inner"), (t - z1, "outer")):
-            if floor < -1e-9:
-                refuse(i, f, f"breaks through the {face} face", floor, fp)
-            if 1e-9 < floor < limit:
-                refuse(i, f, f"leaves too thin a floor at the {face} face", floor, fp)
-            if floor > 1e-9:
-                smallest = min(smallest, floor)
+def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_wall: float = 0.0,
+                   existing=0) -> float:
+    """Refuse features that break through the rim, a face or a bore, overlap
+    one another, or (new features only) keep less than the job's walls;
+    return the smallest wall found, mm.  See geomgen.walls.
 
-    if len(prints) > 1:
-        tree = shapely.STRtree(prints)
-        # a pair further apart in plan than the smallest wall so far cannot be smaller
-        reach = max(limit, smallest if math.isfinite(smallest) else limit)
-        left, right = tree.query(prints, predicate="dwithin", distance=reach)
-        for i, j in zip(left, right):
-            if i >= j:
-                continue
-            d_plan = prints[i].distance(prints[j])
-            (a0, a1), (b0, b1) = ranges[i], ranges[j]
-            d_z = max(0.0, max(a0, b0) - min(a1, b1))
-            wall = math.hypot(d_plan, d_z)
-            if wall < limit - _CHECK_SLACK_MM:
-                what = "overlaps" if wall == 0.0 else "comes too close to"
-                geom = (prints[i].intersection(prints[j]) if d_plan == 0.0
-                        else shapely.shortest_line(prints[i], prints[j]))
-                refuse(i, features[i], f"{what} feature {j} ({features[j].kind})", wall, geom)
-            smallest = min(smallest, wall)
+    existing : the features already on the web (a count n = the first n, or
+               a set of 0-based indices): their thin walls are warnings
+               (`geomgen.walls.wall_warnings`), not refusals
+    Raises BadInput naming the web, the feature (counted from 1) and the wall.
+    """
+    smallest, _ = measure_walls(section, features, name=name, min_wall=min_wall, pin_wall=pin_wall,
+                                existing=existing)
     return smallest
 
 
@@ -236,7 +194,7 @@ def _tools_and_plugs(features, thickness: float):
             tools.append(cq.Solid.makeCylinder(r, z1 - z0, cq.Vector(f.x, f.y, z0)))
             p0 = 0.0 if through else (thickness - reach if f.face == "outer" else 0.0)
             shape = cq.Solid.makeCylinder(r, reach, cq.Vector(f.x, f.y, p0))
-            plugs.append(PlugSolid(shape, plug_density_of(f), i, f"plug-{len(plugs) + 1}"))
+            plugs.append(PlugSolid(shape, plug_density_of(f), i, f"{PLUG}-{len(plugs) + 1}"))
         else:
             raise BadInput(f"feature {i}: unknown type {type(f).__name__}; allowed: hole, pocket, plug")
     return tools, plugs
@@ -276,17 +234,22 @@ def _cleaned(shape):
 
 
 def build_web(section, features=(), *, name: str, min_wall: float = 0.0, pin_wall: float = 0.0,
-              clean: bool = True) -> WebSolid:
+              existing=0, clean: bool = True) -> WebSolid:
     """The web solid with its features, in the web frame.
 
     section : WebSection (outer Loop, bores, thickness mm, density g/cm^3)
     features : Hole / Pocket / Plug, in the web frame
     min_wall : mm, the wall demanded between features, rim, bores and faces
     pin_wall : mm, the wall demanded around the crankpin bore
-    Raises BadInput for a feature that breaks out or overlaps another.
+    existing : the features already on the web, a count n (the first n) or a
+               set of 0-based indices: their walls short of min_wall/pin_wall
+               are kept and reported in `WebSolid.wall_warnings`
+    Raises BadInput for a feature that breaks out or overlaps another, or a
+    new feature short of the walls.
     """
     features = tuple(features)
-    check_features(section, features, name=name, min_wall=min_wall, pin_wall=pin_wall)
+    _, short = measure_walls(section, features, name=name, min_wall=min_wall, pin_wall=pin_wall,
+                             existing=existing)
     t = float(section.thickness)
     body = body_shape(section)
     plugs: list[PlugSolid] = []
@@ -296,22 +259,39 @@ def build_web(section, features=(), *, name: str, min_wall: float = 0.0, pin_wal
         if clean:
             body = _one_solid(_cleaned(body), name=name)
     return WebSolid(name=name, body=body, density_g_cm3=float(section.density_g_cm3), thickness=t,
-                    plugs=tuple(plugs), features=features)
+                    plugs=tuple(plugs), features=features, wall_shortfalls=tuple(short))
 
 
 def crank_assembly(web_a: WebSolid, web_b: WebSolid, *, gap_mm: float):
     """Both webs in the crank frame: web a as it is, web b turned 180 deg
-    about Y (so its (x, y) lands at (-x, y)) with its inner face `gap_mm`
-    from web a's inner face, on the -z side.
+    about Y (so its (x, y, z) lands at (-x, y, -z - gap_mm): its inner face
+    `gap_mm` from web a's inner face, on the -z side).
 
-    Returns a list of (name, shape, density g/cm^3), web a's solids first.
+    Returns a list of (name, shape, density g/cm^3), web a's solids first,
+    named by `crank_solid_name` ("web-a body", "web-a plug-1", "web-b body",
+    ...).  Web b's solids are new shapes with the turn built into their
+    geometry, never a second placement of web a's: twin webs share their
+    shapes, and a STEP writer merges two placements of one shape into one
+    product (a crank file of two alike webs then held only web b).
     """
     import cadquery as cq
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_Transform
+    from OCP.gp import gp_Ax1, gp_Dir, gp_Pnt, gp_Trsf, gp_Vec
 
     if not gap_mm >= 0:
         raise BadInput(f"crank gap: must be >= 0 mm, got {gap_mm}")
-    # turn about Y: (x, y, z) -> (-x, y, -z); then move the inner face (z = 0) to -gap
-    loc = cq.Location(cq.Vector(0, 0, -float(gap_mm))) * cq.Location(cq.Vector(0, 0, 0), cq.Vector(0, 1, 0), 180)
-    out = [(f"{web_a.name}-{n}", s, d) for n, s, d in web_a.solids()]
-    out += [(f"{web_b.name}-{n}", s.moved(loc), d) for n, s, d in web_b.solids()]
+    if web_a.name == web_b.name:
+        raise BadInput(f"crank: both webs are named {web_a.name!r}; the crank file needs two names")
+    turn, shift = gp_Trsf(), gp_Trsf()
+    turn.SetRotation(gp_Ax1(gp_Pnt(0, 0, 0), gp_Dir(0, 1, 0)), math.pi)   # (x, y, z) -> (-x, y, -z)
+    shift.SetTranslation(gp_Vec(0, 0, -float(gap_mm)))                    # inner face z = 0 -> -gap
+    placed = shift.Multiplied(turn)
+
+    def turned(shape):
+        raw = shape.wrapped if hasattr(shape, "wrapped") else shape
+        maker = BRepBuilderAPI_Transform(raw, placed, True)   # True: copy the geometry
+        return cq.Shape.cast(maker.Shape())
+
+    out = [(crank_solid_name(web_a.name, n), s, d) for n, s, d in web_a.solids()]
+    out += [(crank_solid_name(web_b.name, n), turned(s), d) for n, s, d in web_b.solids()]
     return out

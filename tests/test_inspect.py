@@ -79,7 +79,7 @@ def test_dxf_off_centre_bore_shifts_the_centre_of_mass(tmp_path, capsys):
     # parallel-axis theorem: Iz = rho t pi [R^4/2 - (r^4/2 + r^2 e^2)]
     iz = rho * t * math.pi * (R ** 4 / 2 - (r ** 4 / 2 + r ** 2 * e[0] ** 2))
     assert out["inertia_z_gmm2"] == pytest.approx(iz, rel=1e-12)
-    # heavy spot on -X: 90 deg from +Y counter-clockwise (design.md convention)
+    # heavy spot on -X: 90 deg from +Y counter-clockwise (the README convention)
     assert out["heavy_spot_deg"] == pytest.approx(90.0, abs=1e-9)
     assert out["unbalance_magnitude_gmm"] == pytest.approx(abs(m * shift * e[0]), rel=1e-12)
 
@@ -122,7 +122,7 @@ def test_density_as_unit_string(tmp_path, capsys):
 
 
 def test_heavy_spot_convention():
-    # design.md: angle from +Y, counter-clockwise
+    # the README convention: angle from +Y, counter-clockwise
     assert heavy_spot_deg((0.0, 5.0), 1.0) == pytest.approx(0.0)
     assert heavy_spot_deg((-5.0, 0.0), 1.0) == pytest.approx(90.0)
     assert heavy_spot_deg((0.0, -5.0), 1.0) == pytest.approx(180.0)

@@ -217,21 +217,21 @@ def test_cleaned_shape_keeps_volume(holes_web):
 def test_refuses_rim_break_through():
     from geomgen.solid import check_features
 
-    with pytest.raises(BadInput, match=r"web a: feature 1 \(hole\) breaks through the rim"):
+    with pytest.raises(BadInput, match=r"web a: feature 2 \(hole\) breaks through the rim"):
         check_features(section(), [HOLES[0], Hole(0.0, -62.0, 8.0, 5.0)], name="a")
 
 
 def test_refuses_cut_into_pin_bore():
     from geomgen.solid import check_features
 
-    with pytest.raises(BadInput, match=r"feature 0 \(hole\) cuts into the crankpin bore"):
+    with pytest.raises(BadInput, match=r"feature 1 \(hole\) cuts into the crankpin bore"):
         check_features(section(), [Hole(0.0, 32.0 - 14.0 - 3.0, 8.0, 5.0)], name="a")
 
 
 def test_refuses_overlapping_features():
     from geomgen.solid import check_features
 
-    with pytest.raises(BadInput, match=r"feature 0 \(hole\) overlaps feature 1 \(pocket\)"):
+    with pytest.raises(BadInput, match=r"feature 1 \(hole\) overlaps feature 2 \(pocket\)"):
         check_features(section(), [Hole(0.0, -50.0, 8.0, 5.0), Pocket(45.0, 58.0, 170.0, 190.0, 4.0)],
                        name="a")
 
@@ -259,7 +259,7 @@ def test_features_on_opposite_faces_may_share_a_footprint():
 
 def test_modules_import_no_kernel():
     """solid/export/verify import cadquery, OCP and trimesh only inside functions
-    (design.md: `geomgen study` must not load the kernel)."""
+    (`geomgen study` must not load the kernel, README)."""
     import subprocess
     import sys
 
