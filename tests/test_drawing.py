@@ -250,7 +250,9 @@ def test_table_values_against_plan_json(run):
                 assert (row["x mm"], row["y mm"], row["bore mm"]) == \
                     (f"{f['x']:.2f}", f"{f['y']:.2f}", f"{f['diameter']:.2f}")
                 # a plug bore is reamed and flat-bottomed, never a pointed drill
-                assert row["bore finish"] == ("reamed, through" if f["length"] >= thickness else "reamed, flat bottom")
+                # reamed to the bore class of the job's ISO 286 fit (H7 of the default H7/p6)
+                assert row["bore finish"] == ("H7 reamed, through" if f["length"] >= thickness
+                                              else "H7 reamed, flat bottom")
                 assert row["bore depth mm"] == row["plug length mm"] == f"{f['length']:.2f}"
                 assert row["plug material"] == f["material"]
                 # the plug's density as plan.json gives it for the job's plug material
