@@ -20,7 +20,6 @@ import math
 
 from .drawing_style import DIM_COLOUR, DIM_STYLE, new_document
 from .drawing_tables import HEADINGS, NOTES, web_rows
-from .features import Hole, Plug, Pocket, footprint
 
 TEXT_H = 2.5          # mm, table and label text
 TITLE_H = 4.0         # mm
@@ -87,40 +86,35 @@ def _say_prefix(dim, prefix: str) -> None:
 
 
 def _dims(msp, f, *, offset, layer: str) -> None:
-    """Dimensions from the crank axis: the radius to a hole's or plug's centre
-    and its diameter; a pocket's two radii and its angular span."""
+    """The dimensions each feature asks for (geomgen.kinds.Dimension): the distance from the crank axis,
+    a diameter, a radius from the axis, an angular span."""
     ox, oy = offset
     attribs = {"layer": layer}
-    if isinstance(f, (Hole, Plug)):
-        r = math.hypot(f.x, f.y)
-        if r > 1e-6:
-            msp.add_aligned_dim(p1=(ox, oy), p2=(ox + f.x, oy + f.y), distance=4.0, dimstyle=DIM_STYLE,
+    for d in f.dimensions():
+        px, py = d.point
+        if d.what == "from_axis":
+            msp.add_aligned_dim(p1=(ox, oy), p2=(ox + px, oy + py), distance=4.0, dimstyle=DIM_STYLE,
                                 dxfattribs=attribs).render()
-        ang = math.degrees(math.atan2(f.y, f.x)) + 45.0
-        dim = msp.add_diameter_dim(center=(ox + f.x, oy + f.y), radius=0.5 * f.diameter, angle=ang,
-                                   dimstyle=DIM_STYLE, dxfattribs=attribs)
-        dim.render()
-        _say_prefix(dim, "\u00d8")
-    elif isinstance(f, Pocket):
-        # the radii a fifth of the span in from each end, clear of the span's text in the middle
-        first = f.angle_start + 90.0                              # math angle of the start radial line
-        for r, share in ((f.r_outer, 0.8), (f.r_inner, 0.2)):
-            if r > 0:
-                dim = msp.add_radius_dim(center=(ox, oy), radius=r, angle=first + share * f.span_deg,
-                                         dimstyle=DIM_STYLE,
-                                         dxfattribs=attribs)
-                dim.render()
-                _say_prefix(dim, "R")
-        # the span between the pocket's two radial lines (a 2-line angular dimension: LibreCAD draws
-        # no 3-point one), its arc 6 mm outside the outer radius
-        start = math.radians(f.angle_start + 90.0)
-        end = start + math.radians(f.span_deg)
-        centre = (ox, oy)
-        ends = [(ox + f.r_outer * math.cos(a), oy + f.r_outer * math.sin(a)) for a in (start, end)]
-        half = 0.5 * (start + end)
-        base = (ox + (f.r_outer + 6.0) * math.cos(half), oy + (f.r_outer + 6.0) * math.sin(half))
-        msp.add_angular_dim_2l(base=base, line1=(centre, ends[0]), line2=(centre, ends[1]),
-                               dimstyle=DIM_STYLE, dxfattribs=attribs).render()
+        elif d.what == "diameter":
+            dim = msp.add_diameter_dim(center=(ox + px, oy + py), radius=d.radius, angle=d.angle,
+                                       dimstyle=DIM_STYLE, dxfattribs=attribs)
+            dim.render()
+            _say_prefix(dim, "\u00d8")
+        elif d.what == "radius":
+            dim = msp.add_radius_dim(center=(ox, oy), radius=d.radius, angle=d.angle, dimstyle=DIM_STYLE,
+                                     dxfattribs=attribs)
+            dim.render()
+            _say_prefix(dim, "R")
+        elif d.what == "span":
+            # a 2-line angular dimension (LibreCAD draws no 3-point one), its arc 6 mm inside `radius` (the
+            # pocket's inner radius), off the rim; the text is turned off the centre line by a quarter span
+            start, end = math.radians(d.angle), math.radians(d.angle_end)
+            ends = [(ox + d.radius * math.cos(a), oy + d.radius * math.sin(a)) for a in (start, end)]
+            at = start + 0.25 * (end - start)
+            r_arc = max(d.radius - 6.0, 0.5 * d.radius)
+            base = (ox + r_arc * math.cos(at), oy + r_arc * math.sin(at))
+            msp.add_angular_dim_2l(base=base, line1=((ox, oy), ends[0]), line2=((ox, oy), ends[1]),
+                                   dimstyle=DIM_STYLE, dxfattribs=attribs).render()
 
 
 def _com_marker(msp, com, *, offset, layer: str, label: str, left: bool) -> None:
@@ -178,18 +172,16 @@ def _draw_view(msp, doc, w, entry: dict, *, offset, lay: dict) -> None:
     for bore in sec.bores:
         add_loop(msp, bore, offset=offset, layer=lay["BORES"])
     for step, f in enumerate(w.all_features, start=1):
-        add_loop(msp, footprint(f), offset=offset, layer=lay["FEATURES"],
-                 linetype="DASHED" if f.face == "inner" else None)
-        if isinstance(f, Pocket):
-            mid = math.radians(f.angle_start + 0.5 * f.span_deg + 90.0)
-            rm = 0.5 * (f.r_inner + f.r_outer)
-            tag_at = (ox + rm * math.cos(mid), oy + rm * math.sin(mid))
-        else:
-            # the tag sits just outside the circle, away from the dimensions drawn from the axis
-            r = math.hypot(f.x, f.y)
-            ux, uy = (f.x / r, f.y / r) if r > 1e-6 else (0.0, 1.0)
-            reach = 0.5 * f.diameter + 3.5
-            tag_at = (ox + f.x + ux * reach, oy + f.y + uy * reach)
+        add_loop(msp, f.footprint(), offset=offset, layer=lay["FEATURES"],
+                 linetype="DASHED" if f.hidden_in_face_view else None)
+        tx, ty = f.tag_point()
+        if f.tag_clearance > 0:
+            # the tag sits just outside a round feature, away from the dimensions drawn from the axis
+            r = math.hypot(tx, ty)
+            ux, uy = (tx / r, ty / r) if r > 1e-6 else (0.0, 1.0)
+            reach = f.tag_clearance + 3.5
+            tx, ty = tx + ux * reach, ty + uy * reach
+        tag_at = (ox + tx, oy + ty)
         _text(msp, str(step), tag_at, layer=lay["FEATURES"], height=3.0, align="MIDDLE_CENTER")
         _dims(msp, f, offset=offset, layer=lay["DIMS"])
 

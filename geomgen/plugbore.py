@@ -27,7 +27,7 @@ import math
 from dataclasses import dataclass
 
 from .errors import BadInput
-from .features import Hole
+from .kinds.base import point_length
 from .fits import FitLimits, fit_limits
 
 #: (largest diameter, least stock, most stock) on the diameter, mm (common practice)
@@ -97,7 +97,7 @@ def plug_bore(*, diameter_mm: float, length_mm: float, thickness_mm: float, dril
     pre_ream = drill if diameter_mm - drill <= most + 1e-9 else opened_to
     through = length_mm >= thickness_mm - 1e-9
     depth = thickness_mm if through else length_mm
-    point = Hole(x=0.0, y=0.0, diameter=drill, depth=depth, point_angle=point_angle_deg).point_length
+    point = point_length(drill, point_angle_deg)
     # blind: the tip stops at the flat bottom, so nothing is cut below the plug;
     # through: the drill travels its point length past the far face to cut full size there
     tip = depth + point if through else depth

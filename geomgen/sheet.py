@@ -24,10 +24,9 @@ from __future__ import annotations
 import csv
 import io
 import math
-from dataclasses import replace
 
 from .drills import designation
-from .features import Hole, Plug, Pocket, plug_density_of
+from .kinds import KINDS
 from .plugbore import plug_bore
 from .units import MM_PER_INCH
 
@@ -39,18 +38,22 @@ SIZE_DECIMALS = {"mm": 3, "inch": 5}
 ANGLE_DECIMALS = 1
 
 
+#: the columns every kind may fill, before the kinds' own and the effects
+_COMMON = (("web", False), ("feature", False), ("status", False), ("kind", False), ("face", False),
+           ("x", True), ("y", True), ("diameter", True), ("through", False), ("bottom", False),
+           ("depth", True), ("tip_depth", True), ("point_angle_deg", False), ("drill_size", False), ("drill", True))
+_EFFECTS = (("mass_change_g", False), ("unbalance_change_x_gmm", False), ("unbalance_change_y_gmm", False))
+
+
 def columns(units: str) -> list[str]:
-    """The header of operations.csv for a sheet in `units` ("mm" | "inch")."""
+    """The header of operations.csv for a sheet in `units` ("mm" | "inch"): the common columns, each kind's
+    own (geomgen.kinds.KINDS, in order), then the mass and unbalance effect."""
     s = SUFFIX[units]
-    return ["web", "feature", "status", "kind", "face",
-            f"x_{s}", f"y_{s}", f"diameter_{s}", "through", "bottom",
-            f"depth_{s}", f"tip_depth_{s}", "point_angle_deg", "drill_size", f"drill_{s}",
-            f"pre_ream_{s}", f"ream_stock_{s}",
-            "bore_fit", f"bore_min_{s}", f"bore_max_{s}", "plug_fit", f"plug_min_{s}", f"plug_max_{s}",
-            f"interference_min_{s}", f"interference_max_{s}",
-            f"plug_length_{s}", "plug_material", "plug_density_g_cm3",
-            f"r_inner_{s}", f"r_outer_{s}", "angle_start_deg", "angle_end_deg", f"corner_radius_{s}",
-            "mass_change_g", "unbalance_change_x_gmm", "unbalance_change_y_gmm"]
+    names = list(_COMMON)
+    for kind in KINDS.values():
+        names += [c for c in kind.SHEET_COLUMNS if c not in names]
+    names += _EFFECTS
+    return [f"{n}_{s}" if is_length else n for n, is_length in names]
 
 
 def _fixed(value: float, decimals: int) -> str:
@@ -95,6 +98,46 @@ def _yes(flag: bool) -> str:
     return "yes" if flag else "no"
 
 
+class SheetCells:
+    """One row being filled: the kinds write their columns through it, in sheet units and roundings.
+
+    thickness : web, mm;  correction : the job's Correction (drills, point angle, plug fit);
+    plug_density : g/cm^3 of a plug;  where : names the feature in an error.
+    """
+
+    def __init__(self, row: dict, *, units: str, thickness: float, correction, plug_density: float | None,
+                 where: str):
+        self.row, self.units, self.thickness = row, units, thickness
+        self.correction, self.plug_density, self.where = correction, plug_density, where
+        self._s = SUFFIX[units]
+
+    face_view = staticmethod(lambda x, face: face_view(x, face))
+
+    def set(self, key: str, text: str) -> None:
+        self.row[key] = text
+
+    def put(self, key: str, mm: float) -> None:
+        """A position, depth or radius, as the machinist sets it."""
+        self.row[f"{key}_{self._s}"] = set_length(mm, self.units)
+
+    def put_size(self, key: str, mm: float) -> None:
+        """A diameter."""
+        self.row[f"{key}_{self._s}"] = size(mm, self.units)
+
+    def put_size_value(self, key: str, value: float) -> None:
+        """A size already in sheet units (e.g. an interference worked from printed limits)."""
+        self.row[f"{key}_{self._s}"] = _fixed(value, SIZE_DECIMALS[self.units])
+
+    def put_limit(self, key: str, mm: float, *, upper: bool) -> float:
+        """A fit limit, rounded inwards; returns the printed value (sheet units)."""
+        value = _limit(mm, self.units, upper=upper)
+        self.put_size_value(key, value)
+        return value
+
+    def put_angle(self, key: str, deg: float) -> None:
+        self.row[key] = _angle(deg)
+
+
 def feature_row(feature, *, web: str, number: int, status: str, effect: dict, thickness: float,
                 units: str, correction, plug_density: float | None = None) -> dict:
     """One row of the sheet (a dict keyed by `columns(units)`, values as text).
@@ -103,81 +146,21 @@ def feature_row(feature, *, web: str, number: int, status: str, effect: dict, th
     effect : {"mass_g", "unbalance_gmm"} from plan.json;  correction : the job's Correction
     (drills, point angle, plug fit);  plug_density : g/cm^3, for a plug.
     """
-    s = SUFFIX[units]
     row = {c: "" for c in columns(units)}
-    face = feature.face
-    row.update({"web": web, "feature": str(number), "status": status, "kind": feature.kind, "face": face,
+    row.update({"web": web, "feature": str(number), "status": status, "kind": feature.kind, "face": feature.face,
                 "mass_change_g": _fixed(effect["mass_g"], 2),
                 "unbalance_change_x_gmm": _fixed(effect["unbalance_gmm"][0], 1),
                 "unbalance_change_y_gmm": _fixed(effect["unbalance_gmm"][1], 1)})
-
-    def put(key, mm):
-        row[f"{key}_{s}"] = set_length(mm, units)
-
-    def put_size(key, mm):
-        row[f"{key}_{s}"] = size(mm, units)
-
-    if isinstance(feature, (Hole, Plug)):
-        put("x", face_view(feature.x, face))
-        put("y", feature.y)
-        put_size("diameter", feature.diameter)
-    if isinstance(feature, Hole):
-        depth = thickness if feature.through else feature.depth
-        flat = feature.point_angle >= 180.0
-        row["through"] = _yes(feature.through)
-        row["bottom"] = "" if feature.through else ("flat" if flat else "point")
-        put("depth", depth)
-        # through: the drill travels its point length past the far face to cut full diameter there
-        put("tip_depth", depth + replace(feature, through=False, depth=depth).point_length)
-        row["point_angle_deg"] = _angle(feature.point_angle)
-        row["drill_size"] = designation(feature.diameter, correction.drill_series)
-        put_size("drill", feature.diameter)
-    elif isinstance(feature, Plug):
-        bore = plug_bore(diameter_mm=feature.diameter, length_mm=feature.length, thickness_mm=thickness,
-                         drills=correction.drills, point_angle_deg=correction.point_angle,
-                         fit=correction.plug_fit, where=f"web {web} feature {number}")
-        row["through"] = _yes(bore.through)
-        row["bottom"] = "" if bore.through else "flat"
-        put("depth", bore.depth_mm)
-        put("tip_depth", bore.tip_depth_mm)
-        row["point_angle_deg"] = _angle(bore.point_angle_deg)
-        row["drill_size"] = designation(bore.drill_mm, correction.drill_series if bore.drill_in_series else "list")
-        put_size("drill", bore.drill_mm)
-        put_size("pre_ream", bore.pre_ream_mm)
-        put_size("ream_stock", bore.ream_stock_mm)
-        lim = bore.limits
-        limits = {"bore_min": _limit(lim.bore_min_mm, units, upper=False),
-                  "bore_max": _limit(lim.bore_max_mm, units, upper=True),
-                  "plug_min": _limit(lim.plug_min_mm, units, upper=False),
-                  "plug_max": _limit(lim.plug_max_mm, units, upper=True)}
-        decimals = SIZE_DECIMALS[units]
-        for key, value in limits.items():
-            row[f"{key}_{s}"] = _fixed(value, decimals)
-        # from the printed limits, so that the pair the shop measures inside them has this interference
-        row[f"interference_min_{s}"] = _fixed(limits["plug_min"] - limits["bore_max"], decimals)
-        row[f"interference_max_{s}"] = _fixed(limits["plug_max"] - limits["bore_min"], decimals)
-        row["bore_fit"], row["plug_fit"] = lim.bore_class, lim.plug_class
-        put("plug_length", feature.length)
-        row["plug_material"] = feature.material or "custom"
-        row["plug_density_g_cm3"] = _fixed(plug_density, 3) if plug_density is not None else ""
-    elif isinstance(feature, Pocket):
-        start, end = feature.angle_start, feature.angle_start + feature.span_deg
-        if face == "inner":
-            start, end = -end, -start
-        row["through"] = "no"
-        row["bottom"] = "flat"
-        put("depth", feature.depth)
-        put("r_inner", feature.r_inner)
-        put("r_outer", feature.r_outer)
-        row["angle_start_deg"] = _angle(start)
-        row["angle_end_deg"] = _angle(end)
-        put("corner_radius", feature.corner_radius)
+    feature.fill_sheet(SheetCells(row, units=units, thickness=thickness, correction=correction,
+                                  plug_density=plug_density, where=f"web {web} feature {number}"))
     return row
 
 
-def _plug_density(feature: Plug, job) -> float:
-    if feature.material or feature.density:
-        return plug_density_of(feature)
+def _plug_density(feature, job) -> float | None:
+    if not feature.fills:
+        return None
+    if getattr(feature, "material", None) or getattr(feature, "density", None):
+        return feature.plug_density()
     return job.correction.plug_material.density
 
 
@@ -192,7 +175,7 @@ def sheet_rows(*, job, doc: dict, webs) -> list[dict]:
         features = [("existing", f) for f in w.existing] + [("new", f) for f in w.plan.features]
         tables = entry["existing_features"] + entry["planned_features"]
         for number, ((status, feature), table) in enumerate(zip(features, tables), start=1):
-            rho = _plug_density(feature, job) if isinstance(feature, Plug) else None
+            rho = _plug_density(feature, job)
             rows.append(feature_row(feature, web=w.spec.name, number=number, status=status,
                                     effect=table["effect"], thickness=w.section.thickness, units=units,
                                     correction=job.correction, plug_density=rho))

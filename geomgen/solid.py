@@ -9,7 +9,7 @@ Frame: the contract's web frame — crank axis Z, crankpin centre on +Y,
 z = 0 at the inner face and z = thickness at the outer face, mm.
 
 Why the shapes are built the way they are:
-- every hole, pocket and plug bore is one tool of ONE boolean cut: a cut per
+- every feature's tool (made by its kind, geomgen.kinds) is one tool of ONE boolean cut: a cut per
   feature grows with the square of the count (measured: 240 holes 0.23 s in
   one cut, 5.5 s one at a time);
 - a tool that leaves a face is extended `_OVERSHOOT` mm beyond it, so the
@@ -24,12 +24,10 @@ import math
 from dataclasses import dataclass, field
 
 from .errors import BadInput, VerificationFailed
-from .features import Hole, Plug, Pocket, footprint, plug_density_of
-from .loops import Arc, Line, Loop
 from .walls import MIN_SOLID_WALL_MM, WallShortfall, measure_walls  # noqa: F401  (MIN_SOLID_WALL_MM: public)
 
 #: how far a tool reaches past the face it enters, mm (avoids coplanar faces)
-_OVERSHOOT = 1.0
+_OVERSHOOT = 1.0  # the same reach as geomgen.kinds._tools.OVERSHOOT
 #: relative volume agreement demanded of a clean()ed shape (clean() can corrupt a
 #: solid that still reports itself valid)
 _CLEAN_REL = 1e-9
@@ -120,83 +118,14 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_w
 # kernel shapes
 # --------------------------------------------------------------------------
 
-def loop_wire(loop: Loop, z: float = 0.0):
-    """A cadquery Wire of the loop's exact lines and circular arcs at height z (mm)."""
-    import cadquery as cq
-
-    edges = []
-    for seg in loop.segments:
-        if isinstance(seg, Line):
-            edges.append(cq.Edge.makeLine(cq.Vector(*seg.start, z), cq.Vector(*seg.end, z)))
-        elif isinstance(seg, Arc) and abs(seg.sweep_deg) >= 360.0 - 1e-9:
-            edges.append(cq.Edge.makeCircle(seg.radius, cq.Vector(*seg.center, z)))
-        else:
-            edges.append(cq.Edge.makeThreePointArc(cq.Vector(*seg.start, z), cq.Vector(*seg.mid, z),
-                                                   cq.Vector(*seg.end, z)))
-    return cq.Wire.assembleEdges(edges)
-
-
-def _prism(loop: Loop, z0: float, z1: float):
-    import cadquery as cq
-
-    return cq.Solid.extrudeLinear(loop_wire(loop.oriented(True), z0), [], cq.Vector(0, 0, z1 - z0))
-
-
-def _hole_tool(hole: Hole, thickness: float):
-    """The drill's swept volume: a revolved profile of shank and point cone."""
-    import cadquery as cq
-
-    r = 0.5 * hole.diameter
-    if hole.through:
-        return cq.Solid.makeCylinder(r, thickness + 2 * _OVERSHOOT,
-                                     cq.Vector(hole.x, hole.y, -_OVERSHOOT))
-    sign = -1.0 if hole.face == "outer" else 1.0       # direction of feed
-    z_face = thickness if hole.face == "outer" else 0.0
-    z_entry = z_face - sign * _OVERSHOOT
-    z_shoulder = z_face + sign * hole.depth
-    z_tip = z_shoulder + sign * hole.point_length
-    x, y = hole.x, hole.y
-    # profile in the plane through the hole axis, parallel to XZ
-    pts = [(x, y, z_entry), (x + r, y, z_entry), (x + r, y, z_shoulder)]
-    pts.append((x, y, z_tip) if hole.point_length > 0 else (x, y, z_shoulder))
-    profile = cq.Wire.makePolygon([cq.Vector(*p) for p in pts], close=True)
-    return cq.Solid.revolve(profile, [], 360.0, cq.Vector(x, y, 0), cq.Vector(x, y, 1))
-
-
-def _blind_range(feature, thickness: float, reach: float, *, overshoot: float):
-    """(z0, z1) of a flat-bottomed feature `reach` deep, overshooting its face."""
-    if feature.face == "outer":
-        return thickness - reach, thickness + overshoot
-    return -overshoot, reach
-
-
-def _plug_reach(plug: Plug, thickness: float) -> tuple[float, bool]:
-    through = plug.length >= thickness - 1e-9
-    return (thickness if through else plug.length), through
-
-
 def _tools_and_plugs(features, thickness: float):
-    import cadquery as cq
-
+    """Every feature's cutting tool, and the plugs that fill theirs (each kind makes its own)."""
     tools, plugs = [], []
     for i, f in enumerate(features):
-        if isinstance(f, Hole):
-            tools.append(_hole_tool(f, thickness))
-        elif isinstance(f, Pocket):
-            z0, z1 = _blind_range(f, thickness, f.depth, overshoot=_OVERSHOOT)
-            tools.append(_prism(footprint(f).oriented(True), z0, z1))
-        elif isinstance(f, Plug):
-            reach, through = _plug_reach(f, thickness)
-            z0, z1 = _blind_range(f, thickness, reach, overshoot=_OVERSHOOT)
-            if through:
-                z0, z1 = -_OVERSHOOT, thickness + _OVERSHOOT
-            r = 0.5 * f.diameter
-            tools.append(cq.Solid.makeCylinder(r, z1 - z0, cq.Vector(f.x, f.y, z0)))
-            p0 = 0.0 if through else (thickness - reach if f.face == "outer" else 0.0)
-            shape = cq.Solid.makeCylinder(r, reach, cq.Vector(f.x, f.y, p0))
-            plugs.append(PlugSolid(shape, plug_density_of(f), i, f"{PLUG}-{len(plugs) + 1}"))
-        else:
-            raise BadInput(f"feature {i}: unknown type {type(f).__name__}; allowed: hole, pocket, plug")
+        tools.append(f.tool(thickness))
+        filler = f.filler(thickness)
+        if filler is not None:
+            plugs.append(PlugSolid(filler, f.plug_density(), i, f"{PLUG}-{len(plugs) + 1}"))
     return tools, plugs
 
 
@@ -204,6 +133,8 @@ def body_shape(section):
     """The plain web: outline face with its bores as inner wires, extruded
     from z = 0 to the thickness in one step."""
     import cadquery as cq
+
+    from .kinds._tools import loop_wire
 
     outer = loop_wire(section.outer.oriented(True))
     inner = [loop_wire(b.oriented(False)) for b in section.bores]

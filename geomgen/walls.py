@@ -28,7 +28,6 @@ from dataclasses import dataclass
 import shapely
 
 from .errors import BadInput
-from .features import footprint, z_range
 
 #: thinnest wall the kernel is asked to make, mm: below it the cut leaves
 #: sliver faces no machine can hold (our choice, not a shop rule)
@@ -44,7 +43,7 @@ class WallShortfall:
     """An existing feature's wall that is thinner than the job asks.
 
     feature : index in the web's feature list (0-based; `line` counts from 1)
-    kind : "hole" | "pocket" | "plug"
+    kind : the feature's kind (geomgen.kinds.KINDS)
     to : what the wall is between, e.g. "the rim", "the crankpin bore", "feature 2 (pocket)"
     wall_mm : the wall measured;  required_mm : the wall the rule asks
     rule : "min_wall" | "pin_wall"
@@ -122,16 +121,18 @@ def measure_walls(section, features, *, name: str, min_wall: float = 0.0, pin_wa
 
     prints, ranges = [], []
     for i, f in enumerate(features):
-        fp = footprint(f).polygon(CHECK_CHORD_MM)
-        z0, z1 = z_range(f, t)
+        fp = f.footprint().polygon(CHECK_CHORD_MM)
+        z0, z1 = f.z_range(t)
         prints.append(fp)
         ranges.append((z0, z1))
-        if not outer.contains(fp):
-            refuse(i, "breaks through the rim", -fp.difference(outer).area ** 0.5, need_all, fp.difference(outer))
-        wall = outer.exterior.distance(fp)
-        judge(i, to="the rim", wall=wall, need=need_all, rule="min_wall",
-              geom=shapely.shortest_line(outer.exterior, fp), is_old=i in old)
-        smallest = min(smallest, wall)
+        if not f.opens_rim:  # a radial hole enters through the rim by design: it keeps no wall to it
+            if not outer.contains(fp):
+                refuse(i, "breaks through the rim", -fp.difference(outer).area ** 0.5, need_all,
+                       fp.difference(outer))
+            wall = outer.exterior.distance(fp)
+            judge(i, to="the rim", wall=wall, need=need_all, rule="min_wall",
+                  geom=shapely.shortest_line(outer.exterior, fp), is_old=i in old)
+            smallest = min(smallest, wall)
         for k, bore in enumerate(bores):
             is_pin = k == pin_index
             label = "the crankpin bore" if is_pin else f"bore {k + 1}"

@@ -172,7 +172,7 @@ WANT_COLUMNS = {   # the brief's columns, in drafting words
              "drill travel mm", "point angle deg", "mass g", "unbalance x, y g*mm"],
     "pocket": ["no", "status", "face", "r_inner mm", "r_outer mm", "angle_start deg", "angle_end deg", "depth mm",
                "corner radius mm", "mass g", "unbalance x, y g*mm"],
-    "plug": ["no", "status", "face", "x mm", "y mm", "bore mm", "bore finish", "bore depth mm", "plug material",
+    "plug": ["no", "status", "face", "x mm", "y mm", "bore mm", "reamed to, bottom", "bore depth mm", "plug material",
              "plug g/cm3", "plug length mm", "mass g", "unbalance x, y g*mm"],
 }
 TABLE_NOTES = {"hole": "holes:", "pocket": "kidney pockets", "plug": "plugs:"}
@@ -251,8 +251,7 @@ def test_table_values_against_plan_json(run):
                     (f"{f['x']:.2f}", f"{f['y']:.2f}", f"{f['diameter']:.2f}")
                 # a plug bore is reamed and flat-bottomed, never a pointed drill
                 # reamed to the bore class of the job's ISO 286 fit (H7 of the default H7/p6)
-                assert row["bore finish"] == ("H7 reamed, through" if f["length"] >= thickness
-                                              else "H7 reamed, flat bottom")
+                assert row["reamed to, bottom"] == ("H7 through" if f["length"] >= thickness else "H7 flat")
                 assert row["bore depth mm"] == row["plug length mm"] == f"{f['length']:.2f}"
                 assert row["plug material"] == f["material"]
                 # the plug's density as plan.json gives it for the job's plug material

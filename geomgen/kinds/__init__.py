@@ -1,0 +1,40 @@
+"""Feature kinds: one module a kind, each a frozen dataclass answering the protocol of `base.FeatureKind`.
+
+`KINDS` is the registry, the one table of kinds in geomgen: reading a feature table, the sheet's columns
+and the drawing's tables are built from it.  A new kind is one module here, its tool in `_tools.py`,
+its entry in KINDS, and its tests.
+"""
+
+from __future__ import annotations
+
+from ..errors import BadInput
+from .base import FACES, Dimension, FeatureKind, ReportCells, cone_massprops, cylinder_massprops, point_length
+from .hole import Hole
+from .plug import Plug
+from .pocket import Pocket, kidney_loop
+from .radial import Radial
+
+#: every kind, by its `kind` name, in the order the outputs list them
+KINDS: dict[str, type[FeatureKind]] = {k.kind: k for k in (Hole, Pocket, Plug, Radial)}
+
+Feature = Hole | Pocket | Plug | Radial
+
+
+def feature_from_table(table: dict, *, where: str, thickness: float | None = None,
+                       plug_material=None) -> FeatureKind:
+    """A feature from a job or plan.json table; BadInput names `where` and the key.
+
+    thickness : the web thickness, mm (fills a through hole's depth, a plug's length, a radial hole's z);
+    plug_material : the job's `plug_material`, which a plug naming neither material nor density is made of.
+    """
+    if not isinstance(table, dict):
+        raise BadInput(f"{where}: a feature must be a table with 'kind', got {table!r}")
+    kind = table.get("kind")
+    if kind not in KINDS:
+        raise BadInput(f"{where}.kind: must be one of {', '.join(KINDS)}, got {kind!r}")
+    body = {k: v for k, v in table.items() if k != "kind"}
+    return KINDS[kind].read(body, where=where, thickness=thickness, plug_material=plug_material)
+
+
+__all__ = ["KINDS", "FACES", "Feature", "FeatureKind", "Dimension", "ReportCells", "Hole", "Pocket", "Plug",
+           "Radial", "feature_from_table", "kidney_loop", "cylinder_massprops", "cone_massprops", "point_length"]
