@@ -53,7 +53,7 @@ def test_dimension_text_is_the_size_of_the_table_text(printed):
     least 1.8 mm, the smallest lettering height of the ISO 3098 series (from memory)."""
     page, font = printed["page"], printed["font"]
     dims = page.find("\u00d810", font)
-    cells = page.find("reamed, flat bottom", font)      # a plug table cell
+    cells = page.find("W-alloy-class-3", font)      # a plug table cell (its material)
     assert dims and cells
     table_h = cells[0]["height_mm"]
     for hit in dims:
@@ -63,7 +63,7 @@ def test_dimension_text_is_the_size_of_the_table_text(printed):
 
 def test_tables_print_each_kind(printed):
     page, font = printed["page"], printed["font"]
-    for words in ("full-diameter", "drill travel", "r_outer", "angle_start", "bore", "plug", "reamed, flat bottom",
+    for words in ("full-diameter", "drill travel", "r_outer", "angle_start", "bore", "plug", "reamed to", "H7 flat",
                   "existing", "new"):
         assert page.find(words, font), words
     # the existing hole's row: drill travel 6 + 5 / tan(59 deg) = 9.00 mm (Machinery's Handbook drill point)
