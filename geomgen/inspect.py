@@ -231,21 +231,7 @@ def _inspect_stl(path: Path, *, density, material_name, units) -> dict:
 
 
 def _feature_label(f) -> str:
-    from .features import Hole, Plug
-
-    if isinstance(f, Hole):
-        if f.through:
-            depth = "through"
-        elif f.point_angle >= 180.0:
-            depth = f"{f.depth:g} deep, flat bottom"
-        else:
-            depth = f"{f.depth:g} deep + {f.point_angle:g} deg point"
-        return f"hole d{f.diameter:g} at ({f.x:g}, {f.y:g}), {depth}, {f.face} face"
-    if isinstance(f, Plug):
-        what = f.material if f.material is not None else f"{f.density:g} g/cm^3"
-        return f"plug d{f.diameter:g} x {f.length:g} at ({f.x:g}, {f.y:g}), {what}"
-    return (f"pocket r {f.r_inner:g}..{f.r_outer:g}, {f.angle_start:g}..{f.angle_end:g} deg, "
-            f"{f.depth:g} deep, {f.face} face")
+    return f.label()
 
 
 _ROW = 14  # label width of the job table
@@ -270,7 +256,8 @@ def _web_lines(job, web, bare: MassProps, rows: list[dict], changes: list[MassPr
               _table_row("bare web", bare.mass, bare.unbalance, bare.inertia_z)]
     for i, (row, change) in enumerate(zip(rows, changes), 1):
         lines.append(_table_row(f"{i} {row['feature']['kind']}", change.mass, change.unbalance, change.inertia_z))
-    within = "within" if max(map(abs, needed)) <= tol else "not within"
+    # a vector bound, as ISO 21940-11 treats unbalance
+    within = "within" if math.hypot(*needed) <= tol else "not within"
     lines += [_table_row("total", total.mass, total.unbalance, total.inertia_z),
               f"  {'target':<{_ROW}}{'':12}{target[0]:12.2f}{target[1]:12.2f}",
               f"  {'still needed':<{_ROW}}{'':12}{needed[0] + 0.0:12.2f}{needed[1] + 0.0:12.2f}"
@@ -283,24 +270,19 @@ def _web_lines(job, web, bare: MassProps, rows: list[dict], changes: list[MassPr
 
 def _inspect_job(path: Path) -> dict:
     from . import job as jobmod
-    from .features import Plug, feature_massprops, feature_to_table, plug_density_of
     from .pipeline import web_section
 
     job = jobmod.load(path)
-    plug_default = job.correction.plug_material.density if job.correction.plug_material else None
     webs_json, lines = [], [f"{path.name}: {SOURCES['job']}"]
     for web in job.webs:
         section = web_section(job, web)
         bare = section.massprops()
         rows, changes = [], []
-        for f in web.features:
-            # as the pipeline does: a plug naming neither material nor density takes the job's plug_material
-            override = plug_default if isinstance(f, Plug) and f.material is None and f.density is None else None
-            change = feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3,
-                                       plug_density=override)
-            row = {"feature": feature_to_table(f), "label": _feature_label(f), "change": change_figures(change)}
-            if isinstance(f, Plug):
-                row["plug_density_g_cm3"] = override if override is not None else plug_density_of(f)
+        for f in (f.on(section) for f in web.features):
+            change = f.massprops(thickness=section.thickness, web_density=section.density_g_cm3)
+            row = {"feature": f.to_table(), "label": f.label(), "change": change_figures(change)}
+            if f.fills:
+                row["plug_density_g_cm3"] = f.plug_density()
             rows.append(row)
             changes.append(change)
         total = sum(changes, bare)

@@ -6,7 +6,6 @@ Every rule names the key path and what is allowed; everything wrong raises
 
 from __future__ import annotations
 
-import math
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -206,7 +205,7 @@ _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through",
                "plug_material", "lighten", "point_angle", "depth_step", "bf_tolerance_percent",
                "tolerance_points", "iso_grade", "plug_fit"}
 _OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step", "crank_gap"}
-KINDS = ("holes", "pockets", "plugs", "auto")
+KINDS = ("holes", "pockets", "plugs", "radial", "auto")
 ROTATIONS = ("ccw", "cw")
 
 

@@ -17,7 +17,7 @@ import numpy as np
 
 from . import __version__
 from .errors import BadInput, warn_all
-from .features import feature_from_table, feature_massprops, feature_to_table, Plug, plug_density_of
+from .features import feature_from_table, feature_massprops, feature_to_table
 from .massprops import MassProps
 from .output import check_target, staged, write_files
 from .planner import Limits, WebPlan, plan_web
@@ -93,7 +93,7 @@ def plan_webs(job, *, existing=None, targets=None, tolerances=None, method=None,
     out, done = [], []
     for web in job.webs:
         section = web_section(job, web)
-        feats = tuple(existing[web.name]) if existing is not None else tuple(web.features)
+        feats = tuple(f.on(section) for f in (existing[web.name] if existing is not None else web.features))
         target = targets[web.name] if targets else job.target_gmm(web)
         tol = tolerances[web.name] if tolerances else job.tolerance_gmm * web.share
         if method == "none":
@@ -241,7 +241,7 @@ def plug_density_range(job, webs: list[WebWork]) -> dict | None:
     used = {}
     for i, w in enumerate(webs):
         for f in w.all_features:
-            if not isinstance(f, Plug) or f.material is None:
+            if not f.fills or getattr(f, "material", None) is None:
                 continue
             m = material(f.material, "plug material")
             used[m.name] = m
@@ -270,9 +270,8 @@ def safety_figures(job, webs: list[WebWork]) -> dict:
     plugs, discs = [], []
     for w in webs:
         for i, f in enumerate(w.all_features):
-            if isinstance(f, Plug):
-                rho = plug_density_of(f)
-                mass = rho * 1e-3 * math.pi * 0.25 * f.diameter ** 2 * f.length
+            if f.fills:
+                mass = f.plug_mass_g()
                 radius = math.hypot(f.x, f.y)
                 plugs.append({"web": w.spec.name, "feature": i + 1, "diameter_mm": _num(f.diameter),
                               "length_mm": _num(f.length), "mass_g": _num(mass), "radius_mm": _num(radius),
@@ -558,13 +557,8 @@ def summary_lines(doc: dict) -> list[str]:
 
 
 def _feature_line(f: dict) -> str:
-    if f["kind"] == "pocket":
-        return (f"pocket r {f['r_inner']}..{f['r_outer']} mm, {f['angle_start']}..{f['angle_end']} deg, depth "
-                f"{f['depth']} mm, corners r{f['corner_radius']}")
-    if f["kind"] == "plug":
-        return f"plug {f['diameter']} mm x {f['length']} mm at ({f['x']}, {f['y']})"
-    depth = "through" if f.get("through") else f"{f['depth']} mm deep"
-    return f"hole {f['diameter']} mm {depth} at ({f['x']}, {f['y']})"
+    """A plan.json feature row in words, as its kind says it."""
+    return feature_from_table({k: v for k, v in f.items() if k != "effect"}, where="plan.json feature").label()
 
 
 def run_build(args) -> int:

@@ -91,6 +91,10 @@ def _within(deviation, tolerance: float) -> bool:
     return float(np.hypot(*np.asarray(deviation, dtype=float)[:2])) <= tolerance + 1e-9
 
 
+#: the planning methods `auto` chooses among (job.correction.kind also takes "auto")
+METHODS = ("holes", "pockets", "plugs", "radial")
+
+
 # ------------------------------------------------------------------ region
 def allowed_region(*, section, existing, limits: Limits, keep_out=()) -> shapely.Geometry:
     """Where a feature's footprint may lie, as a shapely polygon (web frame, mm)."""
@@ -500,15 +504,15 @@ def _binding(features, *, section, region_parts, limits, thickness) -> str:
     px, py = section.pin_center
     pin = shapely.Point(px, py).buffer(0.5 * section.pin_bore, quad_segs=64)
     margins = {
-        "min_wall to the rim": min(outline.exterior.distance(p) for p in polys) - limits.min_wall,
+        "min_wall to the rim": min((outline.exterior.distance(p) for f, p in zip(features, polys)
+                                    if not f.opens_rim), default=math.inf) - limits.min_wall,
         "pin_wall around the crankpin bore": min(pin.distance(p) for p in polys) - max(limits.pin_wall,
                                                                                      limits.min_wall),
     }
     if len(polys) > 1:
         margins["min_wall between features"] = min(polys[i].distance(polys[j]) for i in range(len(polys))
                                                    for j in range(i + 1, len(polys))) - limits.min_wall
-    depths = [f.depth if isinstance(f, (Hole, Pocket)) else f.length for f in features
-              if not (getattr(f, "through", False) or (isinstance(f, Plug) and f.length >= thickness - 1e-9))]
+    depths = [d for d in (f.face_depth(thickness) for f in features) if d is not None]
     if depths:
         margins["max_depth"] = min(limits.max_depth, thickness - limits.min_wall) - max(depths)
     name, margin = min(margins.items(), key=lambda kv: kv[1])
@@ -517,7 +521,7 @@ def _binding(features, *, section, region_parts, limits, thickness) -> str:
 
 def plan_web(*, name: str, section, existing, target, tolerance: float, method: str, limits: Limits,
              plug_material=None, keep_out=(), lighten: float = 0.0, _hint: bool = True) -> WebPlan:
-    """Plan one web.  method: holes | pockets | plugs | auto.  Raises Infeasible."""
+    """Plan one web.  method: holes | pockets | plugs | radial | auto.  Raises Infeasible."""
     web_density = section.density_g_cm3
     plug_density = plug_material.density if plug_material is not None else None
     thickness = section.thickness
@@ -546,7 +550,7 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
     add_axis = _direction_angle(need_vec)
     blind_max = thickness - limits.min_wall
     tried, reaches = [], {}
-    methods = ["holes", "pockets", "plugs"] if method == "auto" else [method]
+    methods = list(METHODS) if method == "auto" else [method]
     candidates = []
     for m in methods:
         if m == "holes":
@@ -562,6 +566,11 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
                                         need_vec=need_vec,
                                         thickness=thickness, web_density=web_density, limits=limits,
                                         tolerance=tolerance)
+        elif m == "radial":
+            from .plan_radial import plan_radial
+
+            feats, reach = plan_radial(section=section, existing=existing, need_vec=need_vec, tolerance=tolerance,
+                                       limits=limits, keep_out=keep_out, axis=remove_axis)
         else:
             if plug_density is None or plug_density <= web_density:
                 tried.append("plugs: the plug material is not denser than the web")
@@ -599,13 +608,9 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
 
 
 def _machining_order(feats):
-    """Pockets first (they need the face), then holes and plug bores by angle, clockwise from +Y."""
-    def key(f):
-        if isinstance(f, Pocket):
-            return (0, f.angle_start)
-        return (1 if isinstance(f, Hole) else 2, round(-math.atan2(-f.x, f.y), 6) % (2 * math.pi),
-                -math.hypot(f.x, f.y))
-    return sorted(feats, key=key)
+    """Pockets first (they need the face), then holes and plug bores by angle, clockwise from +Y, then
+    radial holes (their own set-up): each kind's `order_key`."""
+    return sorted(feats, key=lambda f: f.order_key())
 
 
 def _raise_infeasible(name, need, reaches, limits, methods, section, existing, target, tolerance,
@@ -613,7 +618,7 @@ def _raise_infeasible(name, need, reaches, limits, methods, section, existing, t
     parts = [f"{m} give at most {reaches.get(m, 0.0):.0f} g*mm" for m in methods]
     hint = ""
     if len(methods) == 1 and hint_wanted:
-        others = [m for m in ("holes", "pockets", "plugs") if m != methods[0]]
+        others = [m for m in METHODS if m != methods[0]]
         for other in others:
             try:
                 plan_web(name=name, section=section, existing=existing, target=target, tolerance=tolerance,

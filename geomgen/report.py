@@ -13,7 +13,6 @@ import html
 import math
 import re
 
-from .features import Pocket, Plug, footprint
 
 _CSS = """
 :root { --ink: #1d2733; --muted: #5b6673; --line: #c9d1da; --soft: #f3f5f8; --warn: #8a3b12;
@@ -100,20 +99,15 @@ def web_svg(w, *, features, com_before, com_after, title: str) -> str:
         body += " " + _path(b.oriented(False).points(chord))
     out.append(f'<path d="{body}" fill="#e4e8ee" stroke="#1d2733" stroke-width="0.6" fill-rule="evenodd"/>')
     for i, f in feature_numbers(w, features):
-        pts = footprint(f).oriented(True).points(chord)
-        dash = ' stroke-dasharray="2,1.2"' if f.face == "inner" else ""
-        if isinstance(f, Plug):
+        pts = f.footprint().oriented(True).points(chord)
+        dash = ' stroke-dasharray="2,1.2"' if f.hidden_in_face_view else ""
+        if f.fills:
             style = 'fill="#1f5f8b" fill-opacity="0.85" stroke="#1f5f8b"'
         else:
             style = 'fill="#ffffff" stroke="#b8322a"'
         out.append(f'<path d="{_path(pts)}" {style} stroke-width="0.6"{dash}/>')
-        if isinstance(f, Pocket):
-            mid = math.radians(f.angle_start + 0.5 * f.span_deg + 90.0)
-            rm = 0.5 * (f.r_inner + f.r_outer)
-            tx, ty = rm * math.cos(mid), rm * math.sin(mid)
-        else:
-            tx, ty = f.x, f.y
-        colour = "#ffffff" if isinstance(f, Plug) else "#b8322a"
+        tx, ty = f.tag_point()
+        colour = "#ffffff" if f.fills else "#b8322a"
         out.append(f'<text x="{tx:.2f}" y="{-ty + 1.6:.2f}" font-size="4.6" text-anchor="middle" '
                    f'fill="{colour}" font-weight="bold">{_e(i)}</text>')
     # directions: crankpin up (+Y), counterweight down (-Y), crank axis cross
@@ -313,21 +307,9 @@ def _feature_rows(w, entry: dict) -> list[list[str]]:
     for (label, f), t in zip(feature_numbers(w, w.all_features), tables):
         eff = t["effect"]
         status = "existing" if label.startswith("E") else "new"
-        if isinstance(f, Pocket):
-            where = f"r {_n(f.r_inner, 2)}–{_n(f.r_outer, 2)} mm, {_n(f.angle_start, 1)}° to " \
-                    f"{_n(f.angle_start + f.span_deg, 1)}°, corners r {_n(f.corner_radius, 2)}"
-            size, depth, kind = "—", f"{_n(f.depth, 2)} (flat)", "pocket"
-        else:
-            where = f"x {_n(f.x, 2)}, y {_n(f.y, 2)} mm"
-            size = f"{_n(f.diameter, 2)}"
-            if isinstance(f, Plug):
-                kind = f"plug ({_e(f.material or 'custom')})"
-                depth = f"{_n(f.length, 2)} (plug length)"
-            else:
-                kind = "hole"
-                depth = "through" if f.through else f"{_n(f.depth, 2)} + {_n(f.point_length, 2)} point"
-        rows.append([label, status, kind, _e(f.face), where, size, depth, _n(eff["mass_g"], 2),
-                     _vec(eff["unbalance_gmm"])])
+        c = f.report_cells()
+        rows.append([label, status, _e(c.kind), _e(f.face), _e(c.where), _e(c.size), _e(c.depth),
+                     _n(eff["mass_g"], 2), _vec(eff["unbalance_gmm"])])
     return rows
 
 
@@ -349,7 +331,7 @@ def _web_block(w, entry: dict) -> str:
     table = _table(["no", "status", "kind", "face", "where (web frame)", "diameter (mm)", "depth (mm)",
                     "mass change (g)", "unbalance change x, y (g·mm)"], rows, left=5) + \
         ('<p class="note">Mass change of a plug: the plug less the web material its bore took out '
-         "(the plug's own mass is in the loads table).</p>" if any(isinstance(f, Plug) for f in w.all_features)
+         "(the plug's own mass is in the loads table).</p>" if any(f.fills for f in w.all_features)
          else "") if rows else "<p>No features: the web already meets its target.</p>"
     considered = "".join(f"<li>{_e(c)}</li>" for c in entry.get("considered", []))
     return "".join([

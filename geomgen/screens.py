@@ -21,7 +21,7 @@ import math
 
 import shapely
 
-from .features import Plug, cylinder_massprops, footprint, plug_density_of
+from .kinds import cylinder_massprops
 from .loads import (bearing_stress_mpa, hub_hoop_stress_mpa, pin_hoop_stress_mpa, plug_load_n,
                     press_fit_pressure_mpa, wall_shear_stress_mpa)
 from .loops import Arc, Line, Loop
@@ -159,7 +159,7 @@ def pin_ligament(web, *, pin_wall: float) -> dict:
     centre, radius = section.pin_center, 0.5 * section.pin_bore
     nearest = None
     for i, f in enumerate(web.all_features):
-        gap = circle_ligament(centre, radius, footprint(f))
+        gap = circle_ligament(centre, radius, f.footprint())
         if nearest is None or gap < nearest[0]:
             nearest = (gap, i + 1, f.kind, "existing" if i < len(web.existing) else "new")
     rim_r, edge = hub_edge(section)
@@ -176,9 +176,9 @@ def plug_walls(web, *, max_rpm: float, overspeed_rpm: float) -> list[dict]:
     """Each plug of one web: the wall to the rim and the mean stresses the plug's pull puts on it."""
     rows = []
     for i, f in enumerate(web.all_features):
-        if not isinstance(f, Plug):
+        if not f.fills:
             continue
-        mass = cylinder_massprops(radius=0.5 * f.diameter, height=f.length, density_g_cm3=plug_density_of(f)).mass
+        mass = cylinder_massprops(radius=0.5 * f.diameter, height=f.length, density_g_cm3=f.plug_density()).mass
         radius = math.hypot(f.x, f.y)
         wall = point_loop_distance((f.x, f.y), web.section.outer) - 0.5 * f.diameter
         row = {"web": web.spec.name, "feature": i + 1, "diameter_mm": _num(f.diameter), "length_mm": _num(f.length),

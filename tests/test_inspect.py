@@ -288,7 +288,7 @@ def test_job_plain_output(tmp_path, capsys):
     path = write_job(tmp_path, web__features=FEATURES[:1])
     assert main(["inspect", str(path)]) == 0
     text = capsys.readouterr().out
-    for label in ("web a", "web b", "bare web", "hole d10", "total", "target", "still needed", "-8344.00"):
+    for label in ("web a", "web b", "bare web", "hole 10 mm", "total", "target", "still needed", "-8344.00"):
         assert label in text
 
 

@@ -165,6 +165,16 @@ class FeatureKind:
         """The depth (or length) the planner tunes, mm."""
         raise NotImplementedError
 
+    def face_depth(self, thickness: float) -> float | None:
+        """How deep it goes into the web from a face (what max_depth limits), mm; None if it goes right
+        through or does not enter from a face."""
+        return None
+
+    def order_key(self) -> tuple:
+        """Machining order: pockets first (they need the face), then holes and plug bores clockwise from +Y,
+        then what needs another set-up (radial holes)."""
+        raise NotImplementedError
+
     # ---------------------------------------------------------------- outputs
     def label(self) -> str:
         raise NotImplementedError

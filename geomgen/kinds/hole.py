@@ -94,6 +94,12 @@ class Hole(FeatureKind):
     def tuned_depth(self) -> float:
         return self.depth
 
+    def face_depth(self, thickness):
+        return None if self.through else self.depth
+
+    def order_key(self):
+        return (1, round(-math.atan2(-self.x, self.y), 6) % (2 * math.pi), -math.hypot(self.x, self.y))
+
     def removed(self, thickness: float, density: float) -> MassProps:
         """The material the drill takes out (a positive body), web frame."""
         r = 0.5 * self.diameter

@@ -94,6 +94,12 @@ class Plug(FeatureKind):
     def tuned_depth(self) -> float:
         return self.length
 
+    def face_depth(self, thickness):
+        return None if self.through_web(thickness) else self.length
+
+    def order_key(self):
+        return (2, round(-math.atan2(-self.x, self.y), 6) % (2 * math.pi), -math.hypot(self.x, self.y))
+
     def massprops(self, *, thickness, web_density, plug_density=None):
         rho_plug = self.plug_density() if plug_density is None else plug_density
         down = self.face == "outer"

@@ -67,6 +67,12 @@ class Pocket(FeatureKind):
     def tuned_depth(self) -> float:
         return self.depth
 
+    def face_depth(self, thickness):
+        return self.depth
+
+    def order_key(self):
+        return (0, self.angle_start)
+
     def massprops(self, *, thickness, web_density, plug_density=None):
         z0, z1 = self.z_range(thickness)
         return -_loops.prism(self.footprint().area_moments(), z0=z0, z1=z1, density_g_cm3=web_density)

@@ -137,6 +137,9 @@ class Radial(FeatureKind):
     def tuned_depth(self) -> float:
         return self.depth
 
+    def order_key(self):
+        return (3, self.angle % 360.0)
+
     def removed(self, density: float):
         self._require_rim("radial hole")
         r = 0.5 * self.diameter
