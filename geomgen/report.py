@@ -281,6 +281,13 @@ def _study_figures(study: dict | None) -> str:
               "force directions from +Y, counter-clockwise in the crank frame (web a seen from its outer face).</p>")
 
 
+def _sheet_notes(job, doc: dict) -> str:
+    from .sheet import sheet_notes
+
+    items = "".join(f"<li>{_e(line)}</li>" for line in sheet_notes(job, doc))
+    return f'<ul class="note">{items}</ul>'
+
+
 def _trim(doc: dict) -> str:
     t = doc.get("trim")
     if t is None:
@@ -340,7 +347,7 @@ def _web_block(w, entry: dict) -> str:
         f'{_n(entry["pin_bore_mm"], 2)} mm</h3>',
         '<p class="legend"><span><i class="sw" style="border-color:#b8322a;background:#fff"></i>material taken off'
         '</span><span><i class="sw" style="border-color:#1f5f8b;background:#1f5f8b"></i>heavy-metal plug</span>'
-        '<span>dashed outline: cut from the inner face</span>'
+        '<span>dashed outline: cut from the inner face, or inside the web (a radial hole)</span>'
         '<span style="color:#d9822b">⊕ COM before</span><span style="color:#2a7d4f">⊕ COM after</span></p>',
         f'<div class="pair">{figs}</div>',
         f"<p><b>Why this plan:</b> {_e(entry['why'])}. <b>What limits it:</b> {_e(entry['binding'])}.</p>",
@@ -480,6 +487,7 @@ def report_html(*, job, doc: dict, webs, study: dict | None, study_svg: bytes | 
         "<h2>The webs before and after</h2>", blocks,
         "<h2>Verification: prediction, exact solid and mesh</h2>", _verification(doc),
         "<h2>Loads at speed</h2>", _safety(doc),
+        "<h2>Reading the shop sheet</h2>", _sheet_notes(job, doc),
         f'<p class="note">Files of this plan: plan.json, operations.csv (the machinist\'s sheet, '
         f"{_e(job.output.sheet_units)}), drawing.dxf, the STEP and STL of each web. "
         "These figures are design aids, not a release for service.</p>",
