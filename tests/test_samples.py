@@ -29,12 +29,14 @@ HAND = {
     "lighter-piston-teardrop": (7.6 * OZ + 55 + 10 + 70, 205 + 35, 160, 0.55, 62.0, 120.0, 10500),
     "plugs-stroker": (330 + 70 + 15 + 85, 240 + 38, 175, 0.65, 66.0, 125.0, 8500),
     "lightening": (330 + 80 + 14 + 70, 215 + 40, 175, 0.50, 62.0, 118.0, 11500),
+    "radial-rim": (285 + 62 + 78, 160 + 22, 110, 0.60, 62.0, 118.0, 9500),
 }
 # worked by hand: bob weight (g) to hang on the assembled crank, e.g. heavier-piston 182 + 0.6 * 439 = 445.4,
 # and each web's target magnitude (g*mm), e.g. (182 + 110 + 263.4) * 31 / 2 = 8608.7
-BOB = {"heavier-piston": 445.4, "lighter-piston-teardrop": 432.751, "plugs-stroker": 603.0, "lightening": 502.0}
+BOB = {"heavier-piston": 445.4, "lighter-piston-teardrop": 432.751, "plugs-stroker": 603.0, "lightening": 502.0,
+       "radial-rim": 437.0}
 PER_WEB = {"heavier-piston": 8608.7, "lighter-piston-teardrop": 9187.64, "plugs-stroker": 12837.0,
-           "lightening": 10493.5}
+           "lightening": 10493.5, "radial-rim": 8478.5}
 
 
 def test_every_sample_is_covered():
