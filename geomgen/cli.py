@@ -1,9 +1,11 @@
 """The command line: `geomgen COMMAND ...` (also `python -m geomgen`).
 
-Each command is a thin function: read the inputs, call the pure stages, write
-the outputs whole through `output.staged`.  Errors the user can fix are
-`GeomgenError`s: one line on stderr, the error's exit code, nothing written.
-The CAD kernel is imported only by the commands that build solids.
+argparse and printing over geomgen.api: each command checks its --out folder
+before any work, loads the job, calls the API, writes the result whole and
+prints the warnings (`geomgen: warning: ...` on stderr) and a summary.  Errors
+the user can fix are `GeomgenError`s: one line on stderr, the error's exit
+code, nothing written.  The CAD kernel is imported only by the commands that
+build solids (and by inspect of a STEP or STL).
 """
 
 from __future__ import annotations
@@ -14,7 +16,9 @@ import sys
 from pathlib import Path
 
 from . import __version__
+from . import api
 from .errors import BadInput, GeomgenError, warn_all
+from .output import check_target
 
 
 class _Parser(argparse.ArgumentParser):
@@ -69,50 +73,65 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _cmd_study(args) -> int:
-    from . import job as jobmod
-    from . import study
-    from .output import check_target, staged, write_files
+    from .study import summary_lines
 
     check_target(args.out, force=args.force)
-    job = jobmod.load(args.job)
-    warn_all(job.warnings)
-    result = study.study_of(job)
-    files = study.render(result)
-    with staged(args.out, force=args.force) as stage:
-        write_files(stage, files)
-    print("\n".join(study.summary_lines(result)))
-    print(f"wrote {', '.join(sorted(files))} to {args.out}")
+    job = _load(args)
+    result = api.study(job)
+    written = api.write_study(result, args.out, force=args.force)
+    print("\n".join(summary_lines(result)))
+    print(f"wrote {', '.join(written)} to {args.out}")
     return 0
 
 
 def _cmd_inspect(args) -> int:
-    from .inspect import inspect_file
-
-    report = inspect_file(Path(args.file), thickness=args.thickness, density=args.density,
-                          material_name=args.material, units=args.units)
+    found = api.inspect(Path(args.file), thickness=args.thickness, density=args.density, material=args.material,
+                        units=args.units)
     if args.json:
-        print(json.dumps(report["json"], indent=2, sort_keys=True))
+        print(json.dumps(found.document, indent=2, sort_keys=True))
     else:
-        print("\n".join(report["lines"]))
+        print("\n".join(found.lines))
     return 0
 
 
 def _cmd_build(args) -> int:
-    from .pipeline import run_build
-
-    return run_build(args)
+    check_target(args.out, force=args.force)
+    job = _load(args)
+    return _finish(args, api.build(job))
 
 
 def _cmd_plan(args) -> int:
-    from .pipeline import run_plan
-
-    return run_plan(args)
+    check_target(args.out, force=args.force)
+    job = _load(args)
+    return _finish(args, api.plan(job))
 
 
 def _cmd_trim(args) -> int:
-    from .pipeline import run_trim
+    check_target(args.out, force=args.force)
+    if Path(args.out).resolve() == Path(args.from_dir).resolve():
+        raise BadInput("--out: must differ from --from (the earlier plan is kept as it is)")
+    job = _load(args)
+    plan = api.trim(job, previous=args.from_dir, unbalance=args.unbalance, angle=args.angle,
+                    against_rotation=args.against_rotation, web=args.web)
+    return _finish(args, plan)
 
-    return run_trim(args)
+
+def _load(args):
+    """The job, its warnings printed at once (before the long part of the work)."""
+    job = api.load_job(args.job)
+    warn_all(job.warnings)
+    return job
+
+
+def _finish(args, plan) -> int:
+    """Solids, checks and files of a build, plan or trim; then the new warnings and the summary."""
+    verified = plan.verify()
+    written = verified.write(args.out, force=args.force)
+    warn_all(line for line in verified.warnings if line not in plan.job.warnings)
+    for line in verified.summary_lines():
+        print(line)
+    print(f"wrote {len(written)} files to {args.out}: {', '.join(written)}")
+    return 0
 
 
 COMMANDS = {"study": _cmd_study, "inspect": _cmd_inspect, "build": _cmd_build, "plan": _cmd_plan,

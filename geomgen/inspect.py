@@ -270,7 +270,7 @@ def _web_lines(job, web, bare: MassProps, rows: list[dict], changes: list[MassPr
 
 def _inspect_job(path: Path) -> dict:
     from . import job as jobmod
-    from .pipeline import web_section
+    from .webs import web_section
 
     job = jobmod.load(path)
     webs_json, lines = [], [f"{path.name}: {SOURCES['job']}"]

@@ -507,10 +507,13 @@ def _output(data) -> Output:
     )
 
 
-def from_dict(data: dict, *, path: Path | None = None) -> Job:
-    """A validated Job from parsed TOML.  Relative paths resolve against `path`'s folder."""
+def from_dict(data: dict, *, path: Path | None = None, base: Path | None = None) -> Job:
+    """A validated Job from parsed TOML.  Relative paths resolve against `base`, else `path`'s folder,
+    else the working folder."""
     _table(data, "job", _TOP)
-    base = path.parent if path is not None else Path.cwd()
+    if base is None:
+        base = path.parent if path is not None else Path.cwd()
+    base = Path(base)
     if "engine" not in data:
         raise BadInput("engine: missing; the [engine] table is required")
     engine = _engine(data["engine"])
@@ -531,8 +534,9 @@ def from_dict(data: dict, *, path: Path | None = None) -> Job:
     )
 
 
-def load(path) -> Job:
-    """Read and validate a job file; every problem is a BadInput naming the file or key."""
+def load(path, *, base=None) -> Job:
+    """Read and validate a job file; every problem is a BadInput naming the file or key.
+    Relative paths in it resolve against `base`, default the file's folder."""
     path = Path(path)
     try:
         text = path.read_text(encoding="utf-8")
@@ -545,6 +549,6 @@ def load(path) -> Job:
     except tomllib.TOMLDecodeError as exc:
         raise BadInput(f"{path}: not valid TOML ({exc})") from None
     try:
-        return from_dict(data, path=path.resolve())
+        return from_dict(data, path=path.resolve(), base=base)
     except BadInput as exc:
         raise BadInput(f"{path.name}: {exc}") from None

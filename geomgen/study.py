@@ -14,6 +14,7 @@ import numpy as np
 
 from . import balance
 from .errors import BadInput
+from .rounding import num as _num, vec as _vec
 
 LBF_N = 4.4482216152605  # 1 lbf in N (exact by definition of the pound-force)
 CYCLE_STEP_DEG = 1
@@ -29,23 +30,6 @@ CAUTION = (
     "Design aid only, not a release for service: check the balance on the real part, "
     "follow the engine maker's limits, local rules and licensed practice."
 )
-
-
-def _num(x: float) -> float:
-    """A float rounded to 6 significant digits, with round-off noise made 0.0.
-
-    Same inputs give the same bytes, and -0.0 / 1e-13 never leak into JSON.
-    """
-    x = float(x)
-    if not math.isfinite(x):
-        raise ValueError(f"non-finite number in the study: {x!r}")
-    if abs(x) < 1e-9:
-        return 0.0
-    return float(f"{x:.6g}") + 0.0
-
-
-def _vec(v) -> list[float]:
-    return [_num(c) for c in v]
 
 
 def _web_shares(web_shares) -> list[tuple[str, float]]:

@@ -8,7 +8,6 @@ the planner adds heavy-metal plugs (kind = "auto", blind holes only).
 
 from __future__ import annotations
 
-import argparse
 import functools
 import json
 import tempfile
@@ -59,15 +58,13 @@ max_depth = 12.0
 @functools.lru_cache(maxsize=1)
 def plan_run() -> dict:
     """{"out": Path, "job": Job, "webs": [WebWork], "doc": plan.json dict, "study": study result}."""
-    from geomgen import job as jobmod
-    from geomgen.pipeline import plan_webs, run_plan
-    from geomgen.study import study_of
+    import geomgen
 
     folder = Path(tempfile.mkdtemp(prefix="geomgen-shop-"))
     job_path = folder / "job.toml"
     job_path.write_text(JOB)
     out = folder / "out"
-    run_plan(argparse.Namespace(job=str(job_path), out=str(out), force=False))
-    job = jobmod.load(job_path)
-    return {"out": out, "job": job, "webs": plan_webs(job), "doc": json.loads((out / "plan.json").read_text()),
-            "study": study_of(job)}
+    plan = geomgen.plan(geomgen.load_job(job_path))
+    plan.verify().write(out)
+    return {"out": out, "job": plan.job, "webs": [w.work for w in plan.webs],
+            "doc": json.loads((out / "plan.json").read_text()), "study": dict(plan.study)}

@@ -1,4 +1,4 @@
-"""The command line on bad input (design.md, "Exit codes"): exit code 2, exactly one
+"""The command line on bad input (README "Commands", exit codes): exit code 2, exactly one
 line on stderr starting "geomgen: ", no traceback, nothing written to --out; an
 existing non-empty --out is left alone without --force.
 
@@ -117,13 +117,48 @@ def test_force_replaces_the_folder_whole(tmp_path, capsys):
 
 @pytest.mark.parametrize("command", ["build", "plan"])
 def test_solid_commands_bad_job(tmp_path, capsys, command):
-    pytest.importorskip("geomgen.pipeline", reason="build/plan pipeline not in the tree yet")
     job = write_job(tmp_path, {"engine.stroke": "3 kg"})
     out_dir = tmp_path / "out"
     code, out, err = run([command, str(job), "--out", str(out_dir)], capsys)
     assert code == 2
     assert "engine.stroke" in assert_one_error_line(err)
     assert not out_dir.exists()
+
+
+@pytest.mark.parametrize("command", ["study", "build", "plan", "trim"])
+def test_a_busy_out_is_refused_before_the_job_is_read(tmp_path, capsys, command):
+    # the job is bad too: the one line must be about --out, so the folder was checked before any work
+    job = write_job(tmp_path, {"engine.stroke": "3 kg"})
+    out_dir = tmp_path / "out"
+    out_dir.mkdir()
+    (out_dir / "notes.txt").write_text("mine")
+    extra = ["--from", str(tmp_path), "--unbalance", "10", "--angle", "0"] if command == "trim" else []
+    code, out, err = run([command, str(job), *extra, "--out", str(out_dir)], capsys)
+    assert code == 2 and out == ""
+    line = assert_one_error_line(err)
+    assert line.startswith(f"geomgen: --out {out_dir}") and "--force" in line and "engine.stroke" not in line
+    assert [p.name for p in out_dir.iterdir()] == ["notes.txt"]
+
+
+def test_trim_out_must_differ_from_from(tmp_path, capsys):
+    job = write_job(tmp_path, {"engine.stroke": "3 kg"})
+    code, _, err = run(["trim", str(job), "--from", str(tmp_path / "p"), "--unbalance", "10", "--angle", "0",
+                        "--out", str(tmp_path / "p")], capsys)
+    assert code == 2 and "must differ from --from" in assert_one_error_line(err)
+    assert not (tmp_path / "p").exists()
+
+
+def test_warnings_are_lines_on_stderr_and_the_run_goes_on(tmp_path, capsys):
+    # a crankpin listed with the rod's rotating end: allowed, with a warning (README "The job file")
+    job = write_job(tmp_path, {"engine.rotating": {"rod_big_end": 200.0, "crankpin": 140.0},
+                               "engine.crank_parts": {}})
+    code, out, err = run(["study", str(job), "--out", str(tmp_path / "out")], capsys)
+    assert code == 0
+    lines = err.splitlines()
+    assert len(lines) == 1 and lines[0].startswith("geomgen: warning: engine.rotating.crankpin:"), err
+    # the bob weight moves by the crankpin's mass: 200 + 140 + 0.55 * 330 = 521.5 g (README "Target")
+    assert "bob weight to hang on the assembled crank: 521.5 g" in out
+    assert sorted(p.name for p in (tmp_path / "out").iterdir()) == ["study.json", "study.svg"]
 
 
 def test_as_a_real_process(tmp_path):

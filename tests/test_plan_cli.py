@@ -1,4 +1,4 @@
-"""`geomgen plan` and `geomgen build` as a user meets them (design.md "Command line", issue 5).
+"""`geomgen plan` and `geomgen build` as a user meets them (README "Commands").
 
 - Infeasible targets: exit 3, nothing written, ONE stderr line with the reachable
   figure and the constraints; the target is shown to be out of reach by a

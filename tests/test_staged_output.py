@@ -1,4 +1,4 @@
-"""geomgen.output: results are written whole or not at all (design.md, "Exit codes":
+"""geomgen.output: results are written whole or not at all (README "Commands":
 outputs go to a temporary folder and are moved into place whole; an existing
 non-empty folder is not overwritten without --force)."""
 

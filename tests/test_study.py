@@ -1,5 +1,6 @@
 """Tests of geomgen.study (the study.json contract) and geomgen.plots."""
 
+import importlib
 import json
 import math
 import subprocess
@@ -10,8 +11,10 @@ from dataclasses import dataclass, field
 
 import pytest
 
-from geomgen import study as study_mod
 from geomgen.errors import BadInput
+
+# the module by its full name: `geomgen.study` on the package is the API's function
+study_mod = importlib.import_module("geomgen.study")
 
 
 @dataclass(frozen=True)
@@ -190,7 +193,9 @@ def test_study_runs_without_cadquery(tmp_path):
                 return None
         sys.meta_path.insert(0, Block())
         from dataclasses import dataclass
-        from geomgen import study, balance
+        import importlib
+        from geomgen import balance
+        study = importlib.import_module("geomgen.study")
         @dataclass(frozen=True)
         class E:
             stroke: float = 64.0; rod_length: float = 110.0; max_rpm: float = 9000.0

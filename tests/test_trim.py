@@ -1,11 +1,11 @@
-"""`geomgen trim`: take off a residual measured on the assembled crank (issue 6, "Done when").
+"""`geomgen trim`: take off a residual measured on the assembled crank (README "Commands").
 
 The check is made on the exported solids only: both web STEPs of the earlier
 plan and of the trim are re-read and integrated by OpenCascade, put in the
-crank frame (web a as it is, web b mirrored (x, y) -> (-x, y), design.md
-"Frame of every web file") and summed.  The trim must change that sum by
+crank frame (web a as it is, web b mirrored (x, y) -> (-x, y), the README's
+"Frame") and summed.  The trim must change that sum by
 minus the heavy spot, -U (-sin A, cos A) (A from the pin, counter-clockwise,
-design.md), within 2 % of U.
+README), within 2 % of U.
 """
 
 from __future__ import annotations
@@ -38,7 +38,7 @@ def _heavy_spot(u, a_deg) -> np.ndarray:
 
 @pytest.fixture(scope="module")
 def planned(tmp_path_factory):
-    """The design.md demo job planned once; `clean` is a copy whose plan.json feature rows lack the
+    """The minimal demo job (conftest) planned once; `clean` is a copy whose plan.json feature rows lack the
     "effect" entries that plan writes and trim refuses (see test_trim_reads_the_plan_folder_as_written)."""
     tmp = tmp_path_factory.mktemp("trim")
     job = tmp / "job.toml"

@@ -1,0 +1,194 @@
+"""plan.json: its layout, its number formatting, and reading its features back.
+
+`plan_document` gathers the figures of a plan (the job, each web's target,
+features, predicted and, once verified, exact and mesh properties, the crank,
+the safety screens, a trim) into the dict written as plan.json;
+`plan_json_bytes` writes it the one way that gives the same bytes for the
+same job.  Mass properties keep 9 significant digits, every other figure 6
+(geomgen.rounding).  `previous_features` reads an earlier plan's features for
+a trim.  No CAD kernel.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import numpy as np
+
+from . import __version__
+from .crank import crank_figures, plug_density_range
+from .errors import BadInput
+from .features import feature_from_table, feature_massprops, feature_to_table
+from .massprops import MassProps
+from .rounding import fine, num, vec
+from .safety import safety_figures
+from .trimming import trim_figures
+
+CAUTIONS = (
+    "A crank that comes apart at speed can kill. These figures are design aids, not a release for service.",
+    "Check the machining and the balance on the real part before it runs.",
+    "Plugs need a retention method (press fit, staking, welding or a cross pin) rated for the load shown, "
+    "with margin, checked by someone qualified to do so.",
+    "Follow the engine maker's limits, local rules and licensed practice; when they disagree with this "
+    "report, they win.",
+)
+
+
+def massprops_figures(p: MassProps) -> dict:
+    """A MassProps as plan.json shows it: mass (g), volume (mm^3), centre of mass (mm), unbalance
+    (g*mm), inertia about Z (g*mm^2), 9 significant digits."""
+    s = p.summary()
+    return {"mass_g": fine(s["mass_g"]), "volume_mm3": fine(s["volume_mm3"]),
+            "com_mm": [fine(v) for v in s["com_mm"]], "unbalance_gmm": [fine(v) for v in s["unbalance_gmm"]],
+            "inertia_z_gmm2": fine(s["inertia_z_gmm2"])}
+
+
+def feature_rows(features, section) -> list[dict]:
+    """Each feature's table as in a job, plus its "effect" (mass and unbalance change) on this web."""
+    rows = []
+    for f in features:
+        t = feature_to_table(f)
+        t = {k: (num(v) if isinstance(v, float) else v) for k, v in t.items()}
+        fx = feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3)
+        t["effect"] = {"mass_g": fine(fx.mass), "unbalance_gmm": [fine(v) for v in fx.unbalance]}
+        rows.append(t)
+    return rows
+
+
+def plan_document(job, command: str, webs: list, verified: list[dict] | None, study_result: dict | None,
+                  trim: dict | None = None) -> dict:
+    """The plan.json dict of one run.
+
+    command : "plan" | "build" | "trim";  webs : the pipeline's WebWork list;  verified : one
+    verification dict per web (pipeline.build_and_verify), or None for the prediction alone (the
+    crank figures then use the predicted properties);  study_result : the study, or None (build);
+    trim : the trim record (measured_gmm, reading_deg, crank_frame_deg, reading_direction, from, web).
+    """
+    e = job.engine
+    exact = [v["exact_massprops"] for v in verified] if verified else [w.plan.predicted for w in webs]
+    doc_webs = []
+    for w, v in zip(webs, verified or [None] * len(webs)):
+        p = w.plan
+        deviation = p.deviation
+        entry = {
+            "name": w.spec.name,
+            "frame": "crank axis = Z through the origin, crankpin on +Y, counterweight on -Y; z from 0 "
+                     "(inner face) to the thickness (outer face), seen from the outer face",
+            "thickness_mm": num(w.section.thickness),
+            "material": w.spec.material.name,
+            "density_g_cm3": num(w.section.density_g_cm3),
+            "outline": str(w.spec.outline) if w.spec.outline else {"diameter_mm": num(w.spec.diameter)},
+            "pin_bore_mm": num(w.spec.pin_bore),
+            "main_bore_mm": num(w.spec.main_bore),
+            "share": num(w.spec.share),
+            "target_gmm": vec(p.target),
+            "tolerance_gmm": num(p.tolerance),
+            "method": p.method,
+            "why": p.why,
+            "binding": p.binding,
+            "considered": list(p.considered),
+            "existing_features": feature_rows(w.existing, w.section),
+            "planned_features": feature_rows(p.features, w.section),
+            "before": massprops_figures(p.before),
+            "predicted": massprops_figures(p.predicted),
+            "deviation_gmm": vec(deviation),
+            "deviation_bf_percent": num(float(np.hypot(*deviation)) / e.bf_unit_gmm),
+            "within_tolerance": p.within_tolerance,
+        }
+        entry["features"] = entry["existing_features"] + entry["planned_features"]
+        if v is not None:
+            entry["exact"] = v["exact"]
+            entry["mesh"] = v["mesh"]
+            entry["agreement"] = v["comparison"]
+            entry["files"] = v["files"]
+        doc_webs.append(entry)
+    doc = {
+        "geomgen_version": __version__,
+        "command": command,
+        "job": job.name,
+        "units": {"length": "mm", "mass": "g", "unbalance": "g*mm", "inertia": "g*mm^2", "angle": "deg",
+                  "density": "g/cm^3", "force": "N", "stress": "MPa", "speed": "rpm"},
+        "engine": {"stroke_mm": num(e.stroke), "rod_length_mm": num(e.rod_length), "max_rpm": num(e.max_rpm),
+                   "balance_factor": num(e.balance_factor), "cylinder_tilt_deg": num(e.cylinder_tilt),
+                   "rotation": e.rotation,
+                   "m_reciprocating_g": num(e.m_reciprocating), "m_rotating_g": num(e.m_rotating),
+                   "m_crank_parts_g": num(e.m_crank_parts),
+                   "reciprocating_g": {k: num(v) for k, v in sorted(e.reciprocating.items())},
+                   "rotating_g": {k: num(v) for k, v in sorted(e.rotating.items())},
+                   "crank_parts_g": {k: num(v) for k, v in sorted(e.crank_parts.items())}},
+        "correction": {"kind": job.correction.kind, "drills": job.correction.drill_series,
+                       "min_wall_mm": num(job.correction.min_wall), "pin_wall_mm": num(job.correction.pin_wall),
+                       "max_depth_mm": num(job.correction.max_depth), "through": job.correction.through,
+                       "plug_material": job.correction.plug_material.name,
+                       "plug_density_g_cm3": num(job.correction.plug_material.density),
+                       "lighten_g": num(job.correction.lighten),
+                       "bf_tolerance_percent": num(job.correction.bf_tolerance_percent)},
+        "webs": doc_webs,
+        "crank": crank_figures(job, webs, exact),
+        "safety": safety_figures(job, webs),
+        "cautions": list(CAUTIONS),
+    }
+    density_range = plug_density_range(job, webs)
+    if density_range is not None:
+        doc["plug_density_range"] = density_range
+    walls = [line for v in (verified or []) for line in v.get("wall_warnings", [])]
+    doc["warnings"] = list(job.warnings) + walls + doc["crank"]["warnings"]
+    if trim is not None:
+        doc["trim"] = trim_figures(job, webs, exact, trim)
+    if study_result is not None:
+        doc["study"] = {k: study_result[k] for k in ("peak_N", "best_balance_factor", "best_balance_factor_no_balancer",
+                                                     "bob_weight_g") if k in study_result}
+    return doc
+
+
+def plan_json_bytes(doc: dict) -> bytes:
+    """plan.json's bytes: sorted keys, two-space indent, one final newline (same job, same bytes)."""
+    return (json.dumps(doc, indent=2, sort_keys=True) + "\n").encode()
+
+
+def jsonable(obj):
+    """`obj` with numpy numbers and arrays made plain, every float through `fine` (9 digits)."""
+    if isinstance(obj, dict):
+        return {k: jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [jsonable(v) for v in obj]
+    if isinstance(obj, (np.floating, float)):
+        return fine(float(obj))
+    if isinstance(obj, np.integer):
+        return int(obj)
+    if isinstance(obj, np.ndarray):
+        return [jsonable(v) for v in obj.tolist()]
+    return obj
+
+
+def previous_features(job, from_dir: Path) -> dict:
+    """{web name: features} of the plan.json in `from_dir` (an earlier plan or build), for a trim."""
+    path = Path(from_dir) / "plan.json"
+    try:
+        doc = json.loads(path.read_text())
+    except FileNotFoundError:
+        raise BadInput(f"--from {from_dir}: no plan.json there; give the folder of an earlier plan or build") from None
+    except (OSError, ValueError) as exc:
+        raise BadInput(f"--from {path}: cannot read it ({exc})") from None
+    return document_features(job, doc, where=f"--from {path}", file_name=path.name)
+
+
+def document_features(job, doc: dict, *, where: str, file_name: str = "plan.json") -> dict:
+    """{web name: features} of a plan.json document, each feature read back from its table as a
+    trim from the written folder reads it (the figures as printed, 6 significant digits).
+
+    where : how error messages name the document;  file_name : how they name its feature rows.
+    """
+    webs = {w.get("name"): w for w in doc.get("webs", []) if isinstance(w, dict)}
+    out = {}
+    for web in job.webs:
+        if web.name not in webs:
+            raise BadInput(f"{where}: no web named {web.name!r} (it has {', '.join(map(str, webs))})")
+        rows = webs[web.name].get("features", [])
+        # plan.json adds each feature's computed effect: figures, not part of the feature
+        out[web.name] = tuple(feature_from_table({k: v for k, v in t.items() if k != "effect"},
+                                                 where=f"{file_name} web {web.name} feature {i + 1}",
+                                                 thickness=web.thickness)
+                              for i, t in enumerate(rows))
+    return out

@@ -1,0 +1,109 @@
+"""The trim's maths: a residual unbalance measured on the assembled crank
+(with its bob weight) turned into a change of each web, and what the new webs
+leave of it.
+
+A balancing machine gives the heavy spot's angle from the crankpin, in the
+direction of rotation unless told otherwise; the crank frame measures
+counter-clockwise from +Y seen from web a's outer face.  A point (x, y) of web
+b is (-x, y) in the crank frame.  No CAD kernel.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+import numpy as np
+
+from .crank import in_crank_frame
+from .errors import BadInput
+from .massprops import MassProps
+from .rounding import num, vec
+from .webs import features_massprops, web_section
+
+_MASS_AT = re.compile(r"^\s*(?P<mass>.+?)\s+at\s+(?P<radius>.+?)\s*$")
+
+
+def measured_unbalance(text) -> float:
+    """g*mm from "120", "0.5 g*in", "0.5 oz*in" or "0.8 g at 55 mm" (or a plain number, g*mm)."""
+    from .units import to_internal
+
+    m = _MASS_AT.match(text) if isinstance(text, str) else None
+    if m:
+        mass = to_internal(m["mass"], "mass", "--unbalance (mass)")
+        radius = to_internal(m["radius"], "length", "--unbalance (radius)")
+        value = mass * radius
+    else:
+        value = to_internal(text, "unbalance", "--unbalance")
+    if not value > 0:
+        raise BadInput(f"--unbalance: must be > 0, got {text!r}")
+    return value
+
+
+def heavy_spot_vector(unbalance_gmm: float, crank_frame_deg: float) -> np.ndarray:
+    """The heavy spot as a crank-frame vector, g*mm: U (-sin A, cos A), A ccw from the pin (+Y)."""
+    a = math.radians(crank_frame_deg)
+    return unbalance_gmm * np.array([-math.sin(a), math.cos(a)])
+
+
+def crank_frame_angle(reading_deg: float, *, rotation: str, against_rotation: bool = False) -> float:
+    """A balancing machine's heavy-spot angle (from the pin, in the direction of rotation unless
+    `against_rotation`) as the crank frame's counter-clockwise angle from +Y (web a seen from its
+    outer face)."""
+    with_rotation = -reading_deg if against_rotation else reading_deg
+    return with_rotation if rotation == "ccw" else -with_rotation
+
+
+def trim_request(job, *, unbalance_gmm: float, angle_deg: float, web_name: str | None):
+    """Per-web changes (web frames) that take off a heavy spot given in the crank frame.
+
+    angle_deg : counter-clockwise from the pin in the crank frame (see `crank_frame_angle`);
+    the webs must change by minus the heavy spot, shared or all on one web.  A point (x, y)
+    of web b is (-x, y) in the crank frame, so its change is mirrored.
+    """
+    names = [w.name for w in job.webs]
+    if web_name is not None and web_name not in names:
+        raise BadInput(f"--web: {web_name!r} is not a web of this job; its webs are {', '.join(names)}")
+    heavy = heavy_spot_vector(unbalance_gmm, angle_deg)
+    changes = {}
+    for i, w in enumerate(job.webs):
+        share = (1.0 if w.name == web_name else 0.0) if web_name else w.share
+        delta = -heavy * share
+        if i == 1:
+            delta = np.array([-delta[0], delta[1]])
+        changes[w.name] = delta
+    return changes
+
+
+def trim_targets(job, *, existing: dict, changes: dict, unbalance_gmm: float) -> tuple[dict, dict]:
+    """({web name: (x, y) g*mm}, {web name: g*mm}): each web's new target (its unbalance with the
+    features it has, plus its change) and the tolerance it is planned to."""
+    targets, tolerances = {}, {}
+    for web in job.webs:
+        section = web_section(job, web)
+        now = section.massprops() + features_massprops(existing[web.name], section)
+        targets[web.name] = tuple(now.unbalance + changes[web.name])
+        share = float(np.hypot(*changes[web.name])) / unbalance_gmm
+        # 1 % of the measured unbalance per web keeps the pair within 2 % of it
+        tolerances[web.name] = max(0.01 * unbalance_gmm * share, 0.05)
+    return targets, tolerances
+
+
+def trim_figures(job, webs: list, exact: list[MassProps], trim: dict) -> dict:
+    """What the trim takes off, in the crank frame, against the measured heavy spot."""
+    gap = job.output.crank_gap
+    before = sum((in_crank_frame(w.plan.before, i, gap=gap) for i, w in enumerate(webs)), MassProps.zero())
+    after = sum((in_crank_frame(p, i, gap=gap) for i, p in enumerate(exact)), MassProps.zero())
+    heavy = heavy_spot_vector(trim["measured_gmm"], trim["crank_frame_deg"])
+    change = after.unbalance - before.unbalance
+    left = heavy + change
+    per_web = {}
+    for i, (w, p) in enumerate(zip(webs, exact)):
+        d = in_crank_frame(p, i, gap=gap).unbalance - in_crank_frame(w.plan.before, i, gap=gap).unbalance
+        per_web[w.spec.name] = vec(d)
+    return {"measured_gmm": num(trim["measured_gmm"]), "reading_deg": num(trim["reading_deg"]),
+            "reading_direction": trim["reading_direction"], "rotation": job.engine.rotation,
+            "heavy_spot_crank_frame_deg": num(trim["crank_frame_deg"] % 360.0),
+            "heavy_spot_gmm": vec(heavy), "on_webs": trim["web"], "from": trim["from"],
+            "change_gmm": vec(change), "change_per_web_gmm": per_web, "left_gmm": vec(left),
+            "left_share_of_measured": num(float(np.hypot(*left)) / trim["measured_gmm"])}

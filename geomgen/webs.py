@@ -1,0 +1,36 @@
+"""A job's webs as the maths sees them: the bare section, the planner's limits,
+and the change a list of features makes.  No CAD kernel.
+"""
+
+from __future__ import annotations
+
+from .features import feature_massprops
+from .massprops import MassProps
+from .planner import Limits
+
+
+def web_section(job, web):
+    """The WebSection of one job web (no features)."""
+    from .section import outline_web, parametric_web
+
+    where = f"web {web.name}"
+    if web.diameter is not None:
+        return parametric_web(diameter=web.diameter, thickness=web.thickness, density_g_cm3=web.density,
+                              stroke=job.engine.stroke, pin_bore=web.pin_bore, main_bore=web.main_bore,
+                              where=where)
+    return outline_web(path=web.outline, thickness=web.thickness, density_g_cm3=web.density,
+                       stroke=job.engine.stroke, pin_bore=web.pin_bore, main_bore=web.main_bore,
+                       units=web.outline_units, where=f"{where} outline")
+
+
+def limits_of(job) -> Limits:
+    """The planner's limits from the job's [correction] table."""
+    c = job.correction
+    return Limits(min_wall=c.min_wall, pin_wall=c.pin_wall, max_depth=c.max_depth, through=c.through,
+                  drills=c.drills, point_angle=c.point_angle, depth_step=c.depth_step)
+
+
+def features_massprops(features, section) -> MassProps:
+    """The change the features make to the bare web (each plug with its own material)."""
+    return sum((feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3)
+                for f in features), MassProps.zero())
