@@ -12,6 +12,8 @@ from ezdxf import path as dxfpath
 from _shop_run import plan_run
 from geomgen.features import feature_from_table, footprint
 
+pytestmark = pytest.mark.cad  # every test reads the shared `plan` run, which builds the solids
+
 
 @pytest.fixture(scope="module")
 def run():
@@ -249,8 +251,10 @@ def test_table_values_against_plan_json(run):
             else:
                 assert (row["x mm"], row["y mm"], row["bore mm"]) == \
                     (f"{f['x']:.2f}", f"{f['y']:.2f}", f"{f['diameter']:.2f}")
-                # a plug bore is reamed and flat-bottomed, never a pointed drill
-                assert row["bore finish"] == ("reamed, through" if f["length"] >= thickness else "reamed, flat bottom")
+                # a plug bore is reamed and flat-bottomed, never a pointed drill; the job names no plug_fit, so
+                # the default H7/p6 press fit: the bore is reamed to ISO 286 class H7 (hole-basis system)
+                assert row["bore finish"] == ("H7 reamed, through" if f["length"] >= thickness
+                                              else "H7 reamed, flat bottom")
                 assert row["bore depth mm"] == row["plug length mm"] == f"{f['length']:.2f}"
                 assert row["plug material"] == f["material"]
                 # the plug's density as plan.json gives it for the job's plug material

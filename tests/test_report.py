@@ -11,6 +11,8 @@ import pytest
 from _shop_run import plan_run
 from geomgen.shop import render
 
+pytestmark = pytest.mark.cad  # every test reads the shared `plan` run, which builds the solids
+
 
 class _Collect(HTMLParser):
     """Tags, attributes and text of a page (the standard library's HTML parser)."""
