@@ -15,7 +15,8 @@ Use them from any test file (pytest puts tests/ on sys.path):
 or the fixtures `job_path` (a valid job file in tmp_path) and `make_job` (the same
 `write_job` already bound to tmp_path).
 
-The minimal job is the design.md example (invented demo numbers): stroke 64 mm,
+The minimal job holds the numbers of the README's job-file example (invented demo
+numbers, without its 20 g big_end_bearing): stroke 64 mm,
 rod 110 mm, 11000 rpm, balance factor 0.55, reciprocating 250 + 80 = 330 g,
 the rod's rotating end 200 g, the crankpin 140 g (a crank part), two alike 130 mm steel webs 18 mm thick with a 28 mm
 pin bore.  Worked by hand from the README's definitions:

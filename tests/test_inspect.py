@@ -23,9 +23,10 @@ import sys
 import ezdxf
 import pytest
 
-from conftest import write_job
 from geomgen.cli import main
 from geomgen.inspect import heavy_spot_deg, inspect_file
+
+from conftest import write_job
 
 STEEL = 7.85                  # g/cm^3, common practice (geomgen.materials "steel")
 W3 = 0.5 * (17.75 + 18.35)    # g/cm^3, ASTM B777-15 class 3, middle of the range

@@ -14,7 +14,6 @@ import math
 
 import pytest
 
-from _shop_run import plan_run
 from geomgen.drills import series
 from geomgen.features import Plug, Pocket
 from geomgen.fits import fit_limits
@@ -22,6 +21,8 @@ from geomgen.job import Correction
 from geomgen.materials import MATERIALS
 from geomgen.plugbore import ream_stock_mm
 from geomgen.sheet import columns, feature_row, operations_csv, sheet_notes
+
+from _shop_run import plan_run
 
 TEXT_VALUES = {
     "status": {"existing", "new"},
