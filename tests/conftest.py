@@ -196,7 +196,7 @@ def pytest_make_collect_report(collector):
     if isinstance(collector, pytest.Module) and not before and _kernel_loaded() and report.passed:
         report.outcome = "failed"
         report.longrepr = (f"importing {collector.nodeid} loaded {', '.join(_kernel_loaded())}: import "
-                           "cadquery/OCP (and geomgen's solid/export/verify) inside the tests marked cad")
+                           "cadquery/OCP inside the tests marked cad, not at the top of a test module")
     return report
 
 
