@@ -21,6 +21,7 @@ The hypothesis tests plan engines within feasible ranges with
 from __future__ import annotations
 
 import math
+import os
 
 import numpy as np
 import pytest
@@ -277,7 +278,12 @@ def _check_plan_analytically(e, plan):
                     pin_bore=e["pin_bore"], thickness=e["thickness"], min_wall=3.0, pin_wall=6.0, max_depth=15.0)
 
 
-@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+# planning one engine takes about a third of a second: CI (which sets CI) tries 25 engines, a developer's
+# quick `pytest -m "not cad"` 8; hypothesis keeps any engine that ever failed in its database and tries it first
+ENGINES = 25 if os.environ.get("CI") else 8
+
+
+@settings(max_examples=ENGINES, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(e=engines)
 def test_hypothesis_engines_planned_within_tolerance_and_walls(e):
     section = parametric_web(diameter=e["diameter"], thickness=e["thickness"], density_g_cm3=STEEL,
