@@ -91,9 +91,7 @@ def segment_ends(pdf: Path) -> list[tuple[float, float]]:
                 A, B, C, D, E, F = matrix
                 matrix = (a * A + b * C, a * B + b * D, c * A + d * C, c * B + d * D,
                           e * A + f * C + E, e * B + f * D + F)
-            elif op in ("m", "l") and len(numbers) >= 2:
-                points.append(_apply(matrix, numbers[-2], numbers[-1]))
-            elif op == "c" and len(numbers) >= 6:
+            elif (op in ("m", "l") and len(numbers) >= 2) or (op == "c" and len(numbers) >= 6):
                 points.append(_apply(matrix, numbers[-2], numbers[-1]))
             numbers = []
     return points

@@ -1,6 +1,10 @@
 """One real `geomgen plan` run shared by the shop-output tests (about 10 s, done once).
 
-The job is an invented demo: the design.md example engine and webs, each web
+It builds solids, so every test that uses it is marked cad.  Its folder comes from
+pytest's tmp_path_factory (conftest hands it over at the start of the session), so
+nothing is left in /tmp or in the repository.
+
+The job is an invented demo: the minimal job's engine and webs (tests/conftest.py), each web
 already carrying a blind hole drilled from the inner face off the centre line on the pin side
 (so the sheet's mirrored x can be seen) and a kidney pocket on the outer face;
 the planner adds heavy-metal plugs (kind = "auto", blind holes only).
@@ -10,7 +14,6 @@ from __future__ import annotations
 
 import functools
 import json
-import tempfile
 from pathlib import Path
 
 JOB = """\
@@ -55,12 +58,18 @@ max_depth = 12.0
 """
 
 
+#: pytest's TempPathFactory for this session; set by the `_shop_run_folder` fixture in conftest
+TMP_FACTORY = None
+
+
 @functools.lru_cache(maxsize=1)
 def plan_run() -> dict:
     """{"out": Path, "job": Job, "webs": [WebWork], "doc": plan.json dict, "study": study result}."""
+    if TMP_FACTORY is None:
+        raise RuntimeError("plan_run() needs pytest's tmp_path_factory: run it under pytest (tests/conftest.py)")
     import geomgen
 
-    folder = Path(tempfile.mkdtemp(prefix="geomgen-shop-"))
+    folder = Path(TMP_FACTORY.mktemp("shop"))
     job_path = folder / "job.toml"
     job_path.write_text(JOB)
     out = folder / "out"

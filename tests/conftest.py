@@ -15,13 +15,21 @@ Use them from any test file (pytest puts tests/ on sys.path):
 or the fixtures `job_path` (a valid job file in tmp_path) and `make_job` (the same
 `write_job` already bound to tmp_path).
 
-The minimal job is the design.md example (invented demo numbers): stroke 64 mm,
+The minimal job holds the numbers of the README's job-file example (invented demo
+numbers, without its 20 g big_end_bearing): stroke 64 mm,
 rod 110 mm, 11000 rpm, balance factor 0.55, reciprocating 250 + 80 = 330 g,
 the rod's rotating end 200 g, the crankpin 140 g (a crank part), two alike 130 mm steel webs 18 mm thick with a 28 mm
 pin bore.  Worked by hand from the README's definitions:
     bob weight = 200 + 0.55 * 330 = 381.5 g (the crankpin is on the crank, not on the bob)
     target per web = -(200 + 140 + 0.55 * 330) * 64/2 * 0.5 = -521.5 * 32 / 2 = -8344 g*mm (on y)
     default tolerance (whole crank) = 0.5/100 * 330 * 32 = 52.8 g*mm
+
+Tests that build solids or import cadquery/OCP carry `@pytest.mark.cad` (a module
+that needs the kernel throughout sets `pytestmark = pytest.mark.cad`), so that
+`pytest -m "not cad"` stays quick and kernel-free.  The hooks at the end of this
+file fail a test that loads the kernel without the mark, and fail the collection
+of a test module whose import loads it.  A subprocess that builds solids (the
+`geomgen plan` command) cannot be seen from here: mark such tests by hand.
 
 `toml_dumps` writes the subset of TOML a job uses (tables, numbers including
 nan/inf, strings, booleans, lists, inline tables); no TOML writer is among the
@@ -34,6 +42,7 @@ from __future__ import annotations
 import copy
 import json
 import math
+import sys
 from pathlib import Path
 
 import pytest
@@ -148,6 +157,14 @@ def write_job(tmp_path, changes: dict | None = None, *, filename: str = "job.tom
     return path
 
 
+@pytest.fixture(scope="session", autouse=True)
+def _shop_run_folder(tmp_path_factory):
+    """The shared `plan` run of tests/_shop_run.py writes under pytest's own temporary folders."""
+    import _shop_run
+
+    _shop_run.TMP_FACTORY = tmp_path_factory
+
+
 @pytest.fixture
 def job_path(tmp_path) -> Path:
     """A valid minimal job file in tmp_path."""
@@ -160,3 +177,51 @@ def make_job(tmp_path):
     def _make(changes: dict | None = None, **kwargs) -> Path:
         return write_job(tmp_path, changes, **kwargs)
     return _make
+
+
+# ------------------------------------------------------------------ the kernel guard
+#: top-level packages of the CAD kernel; loading either costs seconds and is what `-m "not cad"` avoids
+KERNEL = ("cadquery", "OCP")
+
+
+def _kernel_loaded() -> list[str]:
+    return [name for name in KERNEL if name in sys.modules]
+
+
+@pytest.hookimpl(wrapper=True)
+def pytest_make_collect_report(collector):
+    """A test module that imports the kernel at its top makes every run pay for it: its collection fails."""
+    before = _kernel_loaded()
+    report = yield
+    if isinstance(collector, pytest.Module) and not before and _kernel_loaded() and report.passed:
+        report.outcome = "failed"
+        report.longrepr = (f"importing {collector.nodeid} loaded {', '.join(_kernel_loaded())}: import "
+                           "cadquery/OCP inside the tests marked cad, not at the top of a test module")
+    return report
+
+
+def _fail_if_loaded_unmarked(item, before: list[str]) -> None:
+    if before or item.get_closest_marker("cad") is not None:
+        return  # a cad test, or the kernel came in earlier (nothing more can be learnt after that)
+    loaded = _kernel_loaded()
+    if loaded:
+        pytest.fail(f"{item.nodeid} loaded {', '.join(loaded)} but is not marked cad: add @pytest.mark.cad "
+                    "(or pytestmark = pytest.mark.cad for the module)", pytrace=False)
+
+
+# Setup and call are watched apart: a module- or session-scoped fixture (a shared `plan` run) is set up
+# inside the first test's setup, before any function-scoped fixture could look.
+@pytest.hookimpl(wrapper=True)
+def pytest_runtest_setup(item):
+    before = _kernel_loaded()
+    result = yield
+    _fail_if_loaded_unmarked(item, before)
+    return result
+
+
+@pytest.hookimpl(wrapper=True)
+def pytest_runtest_call(item):
+    before = _kernel_loaded()
+    result = yield
+    _fail_if_loaded_unmarked(item, before)
+    return result

@@ -1,11 +1,11 @@
 """Independent checks of a planned web, shared by test_planner, test_plan_cli and test_trim.
 
 Nothing here trusts the planner: targets and tolerances are worked from the
-design.md contract with the job's own numbers; footprints, walls and the
+README's definitions ("What the balance figures mean") with the job's own numbers; footprints, walls and the
 allowed region are rebuilt with shapely from the feature tables of plan.json;
 mass properties are OpenCascade's exact ones read back from the exported STEP.
 
-Frames (design.md, "Frame of every web file"): crank axis = Z, pin on +Y at
+Frames (README, "The job file", Frame): crank axis = Z, pin on +Y at
 stroke/2, a web angle in deg from +Y counter-clockwise, so the point at radius
 r and angle a is (-r sin a, r cos a).  Web b lies in the crank frame with
 (x, y) -> (-x, y).
@@ -59,7 +59,7 @@ def disc_web_mass(*, diameter, thickness, density, pin_bore, main_bore=0.0) -> f
 
 
 def to_crank(u, index: int) -> np.ndarray:
-    """A web-frame (x, y) vector in the crank frame: web b (index 1) mirrored in x (design.md)."""
+    """A web-frame (x, y) vector in the crank frame: web b (index 1) mirrored in x (README, Frame)."""
     u = np.asarray(u, dtype=float)
     return u if index == 0 else np.array([-u[0], u[1]])
 
@@ -221,7 +221,7 @@ def walls(features, *, outline, pin_center, pin_bore, bores=()) -> dict:
 
 def assert_walls(features, *, outline, pin_center, pin_bore, thickness, min_wall, pin_wall, max_depth,
                  bores=(), existing=()):
-    """Every wall of design.md [correction] on the planned features, measured here."""
+    """Every wall of the job's [correction] (README, "The job file") on the planned features, measured here."""
     w = walls(features, outline=outline, pin_center=pin_center, pin_bore=pin_bore, bores=bores)
     assert w["inside"], "a feature footprint leaves the outline"
     assert w["rim"] >= min_wall - WALL_SLACK, w

@@ -13,12 +13,13 @@ import math
 import numpy as np
 import pytest
 
-from conftest import DROP, minimal_job_dict, toml_dumps
 from geomgen import job as jobmod
 from geomgen import pipeline
 from geomgen.massprops import MassProps
 from geomgen.planner import WebPlan
 from geomgen.study import study_of
+
+from conftest import DROP, minimal_job_dict, toml_dumps
 
 STEEL = 7.85
 

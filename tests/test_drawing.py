@@ -9,8 +9,11 @@ import pytest
 import shapely
 from ezdxf import path as dxfpath
 
-from _shop_run import plan_run
 from geomgen.features import feature_from_table, footprint
+
+from _shop_run import plan_run
+
+pytestmark = pytest.mark.cad  # every test reads the shared `plan` run, which builds the solids
 
 
 @pytest.fixture(scope="module")

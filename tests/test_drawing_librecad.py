@@ -16,6 +16,8 @@ import pytest
 from _librecad import Font, Page, need_librecad, pdf_info, print_pdf
 from _shop_run import plan_run
 
+pytestmark = pytest.mark.cad  # the shared `plan` run builds the solids
+
 
 @pytest.fixture(scope="module")
 def printed(tmp_path_factory):

@@ -17,11 +17,11 @@ import math
 
 import pytest
 
-from conftest import write_job
 from geomgen import job as jobmod
 from geomgen.errors import BadInput
-from geomgen.fits import FITS, RANGE_ENDS_MM, SHAFT_EI_UM, STANDARD_TOLERANCE_UM, fit_limits, \
-    standard_tolerance_um
+from geomgen.fits import FITS, RANGE_ENDS_MM, SHAFT_EI_UM, STANDARD_TOLERANCE_UM, fit_limits, standard_tolerance_um
+
+from conftest import write_job
 
 RANGE_STARTS_MM = (1.0,) + RANGE_ENDS_MM[:-1]     # ISO 286-1 takes D of the first range from 1 .. 3 mm
 

@@ -23,9 +23,10 @@ import sys
 import ezdxf
 import pytest
 
-from conftest import write_job
 from geomgen.cli import main
 from geomgen.inspect import heavy_spot_deg, inspect_file
+
+from conftest import write_job
 
 STEEL = 7.85                  # g/cm^3, common practice (geomgen.materials "steel")
 W3 = 0.5 * (17.75 + 18.35)    # g/cm^3, ASTM B777-15 class 3, middle of the range
@@ -133,6 +134,7 @@ def test_heavy_spot_convention():
 
 # -- STEP ------------------------------------------------------------------------
 
+@pytest.mark.cad
 def test_step_box_exact(tmp_path, capsys):
     import cadquery as cq
 
@@ -153,6 +155,7 @@ def test_step_box_exact(tmp_path, capsys):
     assert out["density_g_cm3"] == STEEL and len(out["solids"]) == 1
 
 
+@pytest.mark.cad
 def test_step_body_and_plug_densities(tmp_path, capsys):
     import cadquery as cq
 
@@ -180,6 +183,7 @@ def test_step_body_and_plug_densities(tmp_path, capsys):
     assert "plug-1:" in text and "W-alloy-class-3, default for plugs" in text
 
 
+@pytest.mark.cad
 def test_step_refuses_thickness_and_units(tmp_path, capsys):
     import cadquery as cq
 
@@ -193,19 +197,33 @@ def test_step_refuses_thickness_and_units(tmp_path, capsys):
 
 # -- STL -------------------------------------------------------------------------
 
-def test_stl_cylinder_fine_mesh(tmp_path, capsys):
+@pytest.mark.cad
+def test_stl_cylinder_mesh_is_its_regular_polygon_prism(tmp_path, capsys):
     import cadquery as cq
+    import numpy as np
+    import trimesh
 
     r, h, x0 = 25.0, 12.0, 8.0
     path = tmp_path / "cyl.stl"
     cq.exporters.export(cq.Workplane().circle(r).extrude(h).translate((x0, 0, 0)), str(path),
                         tolerance=0.01, angularTolerance=0.1)
+    # OpenCascade meshes the circle as a regular n-gon with its corners on the circle; trimesh (independent
+    # of geomgen's reading) counts the corners of the top face
+    top = trimesh.load(path).vertices
+    top = top[np.isclose(top[:, 2], h)]
+    n = len(top)
+    assert np.allclose(np.hypot(top[:, 0] - x0, top[:, 1]), r, atol=1e-5)     # float32 STL coordinates
     out = run_json(capsys, path)
-    m = STEEL * 1e-3 * math.pi * r ** 2 * h                           # closed form, cylinder
-    assert out["mass_g"] == pytest.approx(m, rel=3e-3)
-    assert out["unbalance_gmm"] == pytest.approx([m * x0, 0.0], rel=3e-3, abs=3e-3 * m * x0)
-    assert out["inertia_z_gmm2"] == pytest.approx(m * r ** 2 / 2 + m * x0 ** 2, rel=3e-3)
-    assert out["com_mm"][2] == pytest.approx(h / 2, rel=3e-3)
+    # closed forms of the regular n-gon of circumradius r: area (n/2) r^2 sin(2 pi/n), polar moment about its
+    # centre A r^2 (1 + 2 cos^2(pi/n)) / 6 (-> A r^2 / 2 for the circle), centroid at the centre
+    m = STEEL * 1e-3 * 0.5 * n * r ** 2 * math.sin(2 * math.pi / n) * h
+    assert out["mass_g"] == pytest.approx(m, rel=1e-6)
+    assert out["unbalance_gmm"] == pytest.approx([m * x0, 0.0], rel=1e-6, abs=1e-6 * m * x0)
+    iz = m * r ** 2 * (1 + 2 * math.cos(math.pi / n) ** 2) / 6 + m * x0 ** 2      # + parallel-axis theorem
+    assert out["inertia_z_gmm2"] == pytest.approx(iz, rel=1e-6)
+    assert out["com_mm"][2] == pytest.approx(h / 2, rel=1e-6)
+    # and the polygon lies inside the true circle by the mesh's chord height, never outside
+    assert 0 < 1 - out["mass_g"] / (STEEL * 1e-3 * math.pi * r ** 2 * h) < 1 - math.cos(math.pi / n) ** 2
     assert "trimesh" in out["source"]
 
 

@@ -1,10 +1,10 @@
 """geomgen.job: loading a job file, converting its units, and every validation rule.
 
 Each bad-input case checks that `load` raises BadInput with ONE line that names
-the key path (design.md: "one line ... naming the field or file ... and the
-allowed range").  Unit factors: 1 in = 25.4 mm, 1 oz = 28.349523125 g,
+the key path (README, Commands, exit code 2: "one line on stderr naming the
+key or file and what is allowed").  Unit factors: 1 in = 25.4 mm, 1 oz = 28.349523125 g,
 1 lb = 453.59237 g exactly (NIST SP 811, appendix B).  Target and tolerance:
-the design.md contract, worked by hand in the comments.
+the README's definitions ("What the balance figures mean"), worked by hand in the comments.
 """
 
 import math
@@ -12,12 +12,13 @@ import tomllib
 
 import pytest
 
-from conftest import DROP, minimal_job_dict, minimal_job_text, toml_dumps, write_job
 from geomgen import job as jobmod
 from geomgen.drills import series
 from geomgen.errors import BadInput
-from geomgen.features import Hole, Pocket, Plug
+from geomgen.features import Hole, Plug, Pocket
 from geomgen.materials import MATERIALS
+
+from conftest import DROP, minimal_job_dict, minimal_job_text, toml_dumps, write_job
 
 HOLE = {"kind": "hole", "x": 0.0, "y": -40.0, "diameter": 10.0, "depth": 8.0}
 POCKET = {"kind": "pocket", "r_inner": 40.0, "r_outer": 55.0, "angle_start": 150.0, "angle_end": 210.0,
@@ -150,7 +151,7 @@ def test_from_dict_without_a_file():
 
 def test_target_and_tolerance_by_hand(job_path):
     job = jobmod.load(job_path)
-    # design.md: U_webs = -(m_rot + BF * m_recip) * stroke/2 along Y, split equally:
+    # README: U_webs = -(rotating end + crank parts + BF * m_recip) * stroke/2 along Y, split equally:
     #   -(340 + 0.55 * 330) * 32 = -521.5 * 32 = -16688 g*mm; per web -8344 g*mm
     for web in job.webs:
         assert job.target_gmm(web) == pytest.approx((0.0, -8344.0), abs=1e-9)

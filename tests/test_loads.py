@@ -20,8 +20,16 @@ import math
 import numpy as np
 import pytest
 
-from geomgen.loads import (bearing_stress_mpa, disc_hoop_stress_mpa, hub_hoop_stress_mpa, omega,
-                           pin_hoop_stress_mpa, plug_load_n, press_fit_pressure_mpa, wall_shear_stress_mpa)
+from geomgen.loads import (
+    bearing_stress_mpa,
+    disc_hoop_stress_mpa,
+    hub_hoop_stress_mpa,
+    omega,
+    pin_hoop_stress_mpa,
+    plug_load_n,
+    press_fit_pressure_mpa,
+    wall_shear_stress_mpa,
+)
 
 STEEL_PSI = dict(hub_e_mpa=30e6, hub_nu=0.292, pin_e_mpa=30e6, pin_nu=0.292)   # E = 30 Mpsi, as the problems use
 

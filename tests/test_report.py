@@ -8,8 +8,11 @@ from html.parser import HTMLParser
 
 import pytest
 
-from _shop_run import plan_run
 from geomgen.shop import render
+
+from _shop_run import plan_run
+
+pytestmark = pytest.mark.cad  # every test reads the shared `plan` run, which builds the solids
 
 
 class _Collect(HTMLParser):

@@ -2,7 +2,8 @@
 
 Hand figures use the README's definitions (common practice): bob weight = m_rot + BF * m_recip with m_rot the
 rod's rotating end only; each web carries half of (m_rot + m_crank_parts + BF * m_recip) * stroke/2; the
-tolerance of the whole crank is 0.005 * m_recip * stroke/2 on the deviation's magnitude.  The dead-centre forces are the textbook ones, m_recip r w^2 (1 +- r/l)
+tolerance of the whole crank is 0.005 * m_recip * stroke/2 on the deviation's magnitude.  The dead-centre
+forces are the textbook ones, m_recip r w^2 (1 +- r/l)
 (e.g. Khurmi & Gupta, Theory of Machines, primary and secondary forces of the reciprocating parts).
 """
 

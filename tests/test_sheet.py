@@ -2,7 +2,7 @@
 
 The file must read as plain data (RFC 4180: a header line first, the same
 number of fields in every record, CRLF line breaks) with Python's csv module
-and, where it is installed, pandas.read_csv.
+and pandas.read_csv (pandas is in the test extra).
 """
 
 from __future__ import annotations
@@ -14,7 +14,6 @@ import math
 
 import pytest
 
-from _shop_run import plan_run
 from geomgen.drills import series
 from geomgen.features import Plug, Pocket
 from geomgen.fits import fit_limits
@@ -22,6 +21,8 @@ from geomgen.job import Correction
 from geomgen.materials import MATERIALS
 from geomgen.plugbore import ream_stock_mm
 from geomgen.sheet import columns, feature_row, operations_csv, sheet_notes
+
+from _shop_run import plan_run
 
 TEXT_VALUES = {
     "status": {"existing", "new"},
@@ -45,6 +46,7 @@ def _inch(run):
 
 @pytest.fixture(scope="module")
 def run():
+    # the shared `plan` run builds the solids: every test that takes this fixture is marked cad
     r = dict(plan_run())
     r["raw"] = (r["out"] / "operations.csv").read_bytes()
     r["rows"] = _rows(r["raw"])
@@ -63,6 +65,7 @@ def _pairs(run, rows=None):
 # ---------------------------------------------------------------- plain data
 
 
+@pytest.mark.cad
 @pytest.mark.parametrize("units", ["mm", "inch"])
 def test_rfc_4180_header_first_crlf_every_record_complete(run, units):
     raw = run["raw"] if units == "mm" else _inch(run)[1]
@@ -77,6 +80,7 @@ def test_rfc_4180_header_first_crlf_every_record_complete(run, units):
     assert all(len(rec) == len(records[0]) for rec in records)
 
 
+@pytest.mark.cad
 def test_every_column_holds_one_type(run):
     header = list(run["rows"][0])
     for col in header:
@@ -96,9 +100,11 @@ def test_every_column_holds_one_type(run):
     assert lengths and all(c.endswith("_mm") for c in lengths)
 
 
+@pytest.mark.cad
 @pytest.mark.parametrize("units", ["mm", "inch"])
 def test_pandas_reads_it_as_data(run, units, tmp_path):
-    pd = pytest.importorskip("pandas")
+    import pandas as pd
+
     raw = run["raw"] if units == "mm" else _inch(run)[1]
     path = tmp_path / "operations.csv"
     path.write_bytes(raw)
@@ -113,6 +119,7 @@ def test_pandas_reads_it_as_data(run, units, tmp_path):
                                                          abs=1e-9)
 
 
+@pytest.mark.cad
 def test_same_job_same_bytes(run):
     assert operations_csv(job=run["job"], doc=run["doc"], webs=run["webs"]) == run["raw"]
 
@@ -120,6 +127,7 @@ def test_same_job_same_bytes(run):
 # ---------------------------------------------------------------- content
 
 
+@pytest.mark.cad
 def test_one_row_per_feature_in_machining_order(run):
     for web in run["doc"]["webs"]:
         rows = _by_web(run["rows"], web["name"])
@@ -132,6 +140,7 @@ def test_one_row_per_feature_in_machining_order(run):
                                                + ["new"] * len(web["planned_features"]))
 
 
+@pytest.mark.cad
 def test_mass_changes_sum_to_predicted_minus_before(run):
     job_web = run["job"].webs[0]
     for web in run["doc"]["webs"]:
@@ -154,6 +163,7 @@ def test_mass_changes_sum_to_predicted_minus_before(run):
         assert sum(float(r["unbalance_change_y_gmm"]) for r in new) == pytest.approx(du[1], abs=0.05 * len(new) + 0.2)
 
 
+@pytest.mark.cad
 def test_positions_match_plan_and_inner_face_is_mirrored(run):
     seen_inner = False
     for row, f, _ in _pairs(run):
@@ -172,6 +182,7 @@ def test_positions_match_plan_and_inner_face_is_mirrored(run):
     assert seen_inner, "the test job must carry an inner-face hole off the centre line"
 
 
+@pytest.mark.cad
 def test_drill_depths_of_holes(run):
     blind = [(r, f) for r, f, _ in _pairs(run) if f["kind"] == "hole" and not f.get("through")]
     assert blind
@@ -186,6 +197,7 @@ def test_drill_depths_of_holes(run):
         assert tip - depth == pytest.approx(0.3 * d, abs=0.005 * d)
 
 
+@pytest.mark.cad
 def test_plug_rows_carry_the_bore_the_fit_and_the_plug(run):
     plugs = [(r, f, w) for r, f, w in _pairs(run) if f["kind"] == "plug"]
     assert plugs, "the test job's plan must hold plugs"
@@ -224,6 +236,7 @@ def test_plug_rows_carry_the_bore_the_fit_and_the_plug(run):
         assert MATERIALS[row["plug_material"]].density == pytest.approx(float(row["plug_density_g_cm3"]), abs=5e-4)
 
 
+@pytest.mark.cad
 def test_inch_sheet_is_mm_over_25_4(run):
     _, raw = _inch(run)
     rows = _rows(raw)
@@ -292,6 +305,7 @@ def test_inner_face_through_plug_and_another_fit():
 # ---------------------------------------------------------------- notes
 
 
+@pytest.mark.cad
 @pytest.mark.parametrize("units", ["mm", "inch"])
 def test_notes_say_how_to_read_it(run, units):
     job = run["job"] if units == "mm" else _inch(run)[0]

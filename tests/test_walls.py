@@ -21,11 +21,12 @@ import sys
 
 import pytest
 
-from conftest import minimal_job_dict, toml_dumps
 from geomgen.errors import BadInput
 from geomgen.features import Hole
 from geomgen.section import parametric_web
 from geomgen.walls import measure_walls, wall_warnings
+
+from conftest import minimal_job_dict, toml_dumps
 
 RHO, T, D, STROKE, PIN = 7.85, 18.0, 130.0, 64.0, 28.0
 FLAT = 2e-3   # mm: chord flattening of the check, both rings
