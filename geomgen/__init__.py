@@ -17,8 +17,21 @@ import types as _types
 __version__ = "0.1.0"
 
 from . import api as _api  # noqa: E402
-from .api import (Figures, Inspection, Plan, PlannedWeb, Verified, VerifiedWeb, build, inspect,  # noqa: E402
-                  load_job, plan, study, trim, write_study)
+from .api import (  # noqa: E402
+    Figures,
+    Inspection,
+    Plan,
+    PlannedWeb,
+    Verified,
+    VerifiedWeb,
+    build,
+    inspect,
+    load_job,
+    plan,
+    study,
+    trim,
+    write_study,
+)
 from .errors import BadInput, GeomgenError, Infeasible, VerificationFailed  # noqa: E402
 
 #: API functions that share their name with a module of the package

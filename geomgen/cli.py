@@ -15,8 +15,7 @@ import json
 import sys
 from pathlib import Path
 
-from . import __version__
-from . import api
+from . import __version__, api
 from .errors import BadInput, GeomgenError, warn_all
 from .output import check_target
 
@@ -61,7 +60,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("job", metavar="JOB", help="job file (TOML)")
     p.add_argument("--from", dest="from_dir", required=True, metavar="DIR", help="the earlier plan or build folder")
     p.add_argument("--unbalance", required=True, metavar="U",
-                   help="measured unbalance, g*mm or a unit string (\"0.5 g*in\"), or mass at a radius (\"0.8 g at 55 mm\")")
+                   help="measured unbalance, g*mm or a unit string (\"0.5 g*in\"), or mass at a radius "
+                        "(\"0.8 g at 55 mm\")")
     p.add_argument("--angle", required=True, metavar="A",
                    help="heavy spot as the balancing machine reads it: deg from the crankpin, measured in the "
                         "direction of rotation ([engine] rotation)")

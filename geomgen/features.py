@@ -6,8 +6,20 @@ functions ask the feature and are kept so callers can say `footprint(f)` as well
 
 from __future__ import annotations
 
-from .kinds import (FACES, KINDS, Feature, FeatureKind, Hole, Plug, Pocket, Radial, cone_massprops,
-                    cylinder_massprops, feature_from_table, kidney_loop)
+from .kinds import (
+    FACES,
+    KINDS,
+    Feature,
+    FeatureKind,
+    Hole,
+    Plug,
+    Pocket,
+    Radial,
+    cone_massprops,
+    cylinder_massprops,
+    feature_from_table,
+    kidney_loop,
+)
 from .loops import Loop
 from .massprops import MassProps
 

@@ -209,7 +209,7 @@ def _inspect_step(path: Path, *, density, material_name) -> dict:
                         "volume_mm3": p.volume, "unbalance_gmm": [float(v) for v in p.unbalance]}
                        for n, (rho, label), p in zip(names, dens, parts)])
     lines = [f"{path.name}: {SOURCES['step']}, {len(solids)} solid{'s' if len(solids) > 1 else ''}"]
-    for n, (rho, label), p in zip(names, dens, parts):
+    for n, (_rho, label), p in zip(names, dens, parts):
         lines.append(f"  {n}: {p.mass:.3f} g, {p.volume:.1f} mm^3, at {label}")
     lines += [""] + props_lines(total)
     return {"json": out, "lines": lines}

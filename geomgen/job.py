@@ -255,7 +255,7 @@ def _masses(table, where: str) -> dict:
     if not isinstance(table, dict) or not table:
         raise BadInput(f"{where}: must be a table of weighed parts in g, e.g. piston = 250.0")
     out = {}
-    for part, value in table.items():
+    for part, _value in table.items():
         out[part] = _number(table, part, where, "mass", lo=0.0, lo_open=True)
     return out
 
@@ -461,7 +461,8 @@ def _correction(data) -> Correction:
                 pts.append(tuple(to_internal(v, "length", f"{zw}.points[{j}]") for v in p))
             zones.append(KeepOut(points=tuple(pts)))
         else:
-            raise BadInput(f"{zw}: must be a circle {{x, y, diameter}} or a polygon {{points = [[x, y], ...]}} (3+ points)")
+            raise BadInput(f"{zw}: must be a circle {{x, y, diameter}} or a polygon "
+                           "{points = [[x, y], ...]} (3+ points)")
     plug_raw = t.get("plug_material", "W-alloy-class-3")
     if isinstance(plug_raw, str):
         plug = material(plug_raw, "correction.plug_material")

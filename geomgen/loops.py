@@ -65,10 +65,10 @@ class AreaMoments:
         return np.array([self.area, self.sx, self.sy, self.sxx, self.sxy, self.syy])
 
     @classmethod
-    def _from_array(cls, values) -> "AreaMoments":
+    def _from_array(cls, values) -> AreaMoments:
         return cls(*(float(v) for v in values))
 
-    def __add__(self, other: "AreaMoments") -> "AreaMoments":
+    def __add__(self, other: AreaMoments) -> AreaMoments:
         if not isinstance(other, AreaMoments):
             return NotImplemented
         return AreaMoments._from_array(self._as_array() + other._as_array())
@@ -78,15 +78,15 @@ class AreaMoments:
             return self
         return NotImplemented
 
-    def __sub__(self, other: "AreaMoments") -> "AreaMoments":
+    def __sub__(self, other: AreaMoments) -> AreaMoments:
         if not isinstance(other, AreaMoments):
             return NotImplemented
         return AreaMoments._from_array(self._as_array() - other._as_array())
 
-    def __neg__(self) -> "AreaMoments":
+    def __neg__(self) -> AreaMoments:
         return AreaMoments._from_array(-self._as_array())
 
-    def scaled(self, factor: float) -> "AreaMoments":
+    def scaled(self, factor: float) -> AreaMoments:
         return AreaMoments._from_array(self._as_array() * factor)
 
     @property
@@ -201,7 +201,7 @@ class Line:
         (x0, y0), (x1, y1) = self.start, self.end
         return (x0 + t * (x1 - x0), y0 + t * (y1 - y0))
 
-    def reversed(self) -> "Line":
+    def reversed(self) -> Line:
         return Line(self.end, self.start)
 
     def flatten(self, max_chord_mm: float = 0.005) -> np.ndarray:
@@ -264,17 +264,14 @@ class Arc:
     def length(self) -> float:
         return self.radius * math.radians(abs(self.sweep_deg))
 
-    def reversed(self) -> "Arc":
+    def reversed(self) -> Arc:
         return Arc(self.center, self.radius, self.end_deg, -self.sweep_deg)
 
     def segments_for(self, max_chord_mm: float) -> int:
         """Chords needed so that no chord lies further than `max_chord_mm`
         (the sagitta, mm) from the arc; at least 4 per full turn."""
         tol = max(float(max_chord_mm), 1e-12)
-        if tol >= self.radius:
-            step = math.pi
-        else:
-            step = 2.0 * math.acos(1.0 - tol / self.radius)
+        step = math.pi if tol >= self.radius else 2.0 * math.acos(1.0 - tol / self.radius)
         sweep = math.radians(abs(self.sweep_deg))
         return max(1, math.ceil(sweep / step), math.ceil(4 * sweep / (2 * math.pi)))
 
@@ -331,7 +328,7 @@ class Loop:
                                  f"segment {(i + 1) % len(segs)} starts at {nxt.start} (gap {gap:.3g} mm)")
 
     @classmethod
-    def from_points(cls, points) -> "Loop":
+    def from_points(cls, points) -> Loop:
         """A loop of straight lines through (n, 2) points (mm); the last
         point joins the first (a repeated closing point is dropped)."""
         pts = np.asarray(points, dtype=float).reshape(-1, 2)
@@ -368,10 +365,10 @@ class Loop:
     def is_ccw(self) -> bool:
         return self._moments.area > 0.0
 
-    def reversed(self) -> "Loop":
+    def reversed(self) -> Loop:
         return Loop(tuple(s.reversed() for s in reversed(self.segments)))
 
-    def oriented(self, ccw: bool = True) -> "Loop":
+    def oriented(self, ccw: bool = True) -> Loop:
         """This loop wound counter-clockwise (ccw=True) or clockwise."""
         return self if self.is_ccw == ccw else self.reversed()
 

@@ -59,11 +59,11 @@ class MassProps:
 
     # -- construction -------------------------------------------------
     @classmethod
-    def zero(cls) -> "MassProps":
+    def zero(cls) -> MassProps:
         return cls(0.0, np.zeros(3), np.zeros((3, 3)), 0.0)
 
     @classmethod
-    def from_centroidal(cls, *, mass: float, com, inertia_com, volume: float = 0.0) -> "MassProps":
+    def from_centroidal(cls, *, mass: float, com, inertia_com, volume: float = 0.0) -> MassProps:
         """A body from its mass (g), centre of mass (3,) mm and inertia tensor
         about its centre of mass (3, 3) g*mm^2 (I = trace(S) E - S convention,
         products of inertia with the minus sign)."""
@@ -74,7 +74,7 @@ class MassProps:
         return centred.transformed(offset=com)
 
     @classmethod
-    def from_density(cls, *, volume: float, centroid, volume_second_moment, density_g_cm3: float) -> "MassProps":
+    def from_density(cls, *, volume: float, centroid, volume_second_moment, density_g_cm3: float) -> MassProps:
         """A body of uniform density from its volume moments.
 
         volume : mm^3;  centroid : (3,) mm;  volume_second_moment : (3, 3)
@@ -86,7 +86,7 @@ class MassProps:
                    rho * np.asarray(volume_second_moment, dtype=float), volume)
 
     # -- algebra --------------------------------------------------------
-    def __add__(self, other: "MassProps") -> "MassProps":
+    def __add__(self, other: MassProps) -> MassProps:
         if not isinstance(other, MassProps):
             return NotImplemented
         return MassProps(self.mass + other.mass, self.first_moment + other.first_moment,
@@ -98,25 +98,25 @@ class MassProps:
             return self
         return NotImplemented
 
-    def __sub__(self, other: "MassProps") -> "MassProps":
+    def __sub__(self, other: MassProps) -> MassProps:
         if not isinstance(other, MassProps):
             return NotImplemented
         return self + other.scaled(-1.0)
 
-    def __neg__(self) -> "MassProps":
+    def __neg__(self) -> MassProps:
         return self.scaled(-1.0)
 
-    def scaled(self, factor: float) -> "MassProps":
+    def scaled(self, factor: float) -> MassProps:
         """Every moment times `factor` (a density ratio, or -1 for removal)."""
         return MassProps(self.mass * factor, self.first_moment * factor,
                          self.second_moment * factor, self.volume * factor)
 
-    def with_density_ratio(self, ratio: float) -> "MassProps":
+    def with_density_ratio(self, ratio: float) -> MassProps:
         """The same volume filled with material `ratio` times as dense."""
         return MassProps(self.mass * ratio, self.first_moment * ratio,
                          self.second_moment * ratio, self.volume)
 
-    def transformed(self, *, rotation=None, offset=(0.0, 0.0, 0.0)) -> "MassProps":
+    def transformed(self, *, rotation=None, offset=(0.0, 0.0, 0.0)) -> MassProps:
         """The body rotated by `rotation` (3, 3), then moved by `offset` (3,) mm.
 
         This is the parallel-axis theorem, written once:
@@ -129,13 +129,13 @@ class MassProps:
         s = s + np.outer(d, m1) + np.outer(m1, d) + self.mass * np.outer(d, d)
         return MassProps(self.mass, m1 + self.mass * d, s, self.volume)
 
-    def rotated_z(self, angle_deg: float) -> "MassProps":
+    def rotated_z(self, angle_deg: float) -> MassProps:
         """Turned about the Z axis by `angle_deg`, counter-clockwise seen from +Z."""
         a = math.radians(angle_deg)
         c, s = math.cos(a), math.sin(a)
         return self.transformed(rotation=[[c, -s, 0.0], [s, c, 0.0], [0.0, 0.0, 1.0]])
 
-    def mirrored_x(self) -> "MassProps":
+    def mirrored_x(self) -> MassProps:
         """x -> -x: how web b's frame maps into the crank frame."""
         return self.transformed(rotation=np.diag([-1.0, 1.0, 1.0]))
 

@@ -14,14 +14,13 @@ import tempfile
 from dataclasses import dataclass
 from pathlib import Path
 
-from .planner import WebPlan, plan_web
-from .plan_json import jsonable, plan_document, plan_json_bytes
-from .webs import features_massprops, web_section, limits_of
-
 # names that lived here before the split; the old spelling keeps working
 from .crank import crank_figures, in_crank_frame, plug_density_range  # noqa: F401
+from .plan_json import jsonable, plan_document, plan_json_bytes
+from .planner import WebPlan, plan_web
 from .safety import safety_figures  # noqa: F401
 from .trimming import crank_frame_angle, heavy_spot_vector  # noqa: F401
+from .webs import features_massprops, limits_of, web_section
 
 
 # ------------------------------------------------------------------ planning

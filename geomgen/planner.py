@@ -204,7 +204,6 @@ class Clearance:
     def __call__(self, xs, ys) -> np.ndarray:
         xs, ys = np.asarray(xs, dtype=float), np.asarray(ys, dtype=float)
         out = np.full(xs.shape, np.inf)
-        pts = None
         for kind, geom, value in self.terms:
             if kind == "in_circle":
                 c = value - np.hypot(xs - geom[0], ys - geom[1])
@@ -368,7 +367,7 @@ def _plan_rows(*, kind, sampler, axis, need_vec, thickness, web_density, plug_de
     for n_target in sorted(by_count):
         found = sorted(by_count[n_target], key=lambda f: (f[0], f[1], -f[2]))
         plans = []
-        for mass, _, d, row, count_groups, lo, hi, has_blind in found[:CANDIDATES]:
+        for _mass, _, _d, row, count_groups, lo, hi, has_blind in found[:CANDIDATES]:
             plan = _tune_row(kind=kind, row=row, axis=axis, u=u, need_vec=need_vec, thickness=thickness,
                              web_density=web_density, plug_density=plug_density, limits=limits,
                              count_groups=count_groups, lo=lo, hi=hi, has_blind=has_blind,
@@ -480,7 +479,8 @@ def _plan_pocket(*, region, r_top, axis, need_vec, thickness, web_density, limit
             else:
                 hi = mid
         span = min(math.ceil(hi * 2) / 2, span_hi)
-        depth = _solve_depth(lambda dp: effect(_kidney(r_in, r_out, axis, span, dp, corner)), need, u,
+        # the lambda is called inside _solve_depth, in this pass of the loop
+        depth = _solve_depth(lambda dp: effect(_kidney(r_in, r_out, axis, span, dp, corner)), need, u,  # noqa: B023
                              MIN_HOLE_DEPTH, depth_max, limits.depth_step)
         if depth is None:
             continue

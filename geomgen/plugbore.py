@@ -27,8 +27,8 @@ import math
 from dataclasses import dataclass
 
 from .errors import BadInput
-from .kinds.base import point_length
 from .fits import FitLimits, fit_limits
+from .kinds.base import point_length
 
 #: (largest diameter, least stock, most stock) on the diameter, mm (common practice)
 REAM_STOCK_MM = ((5.0, 0.1, 0.2), (20.0, 0.2, 0.3), (50.0, 0.3, 0.5))

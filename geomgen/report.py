@@ -13,7 +13,6 @@ import html
 import math
 import re
 
-
 _CSS = """
 :root { --ink: #1d2733; --muted: #5b6673; --line: #c9d1da; --soft: #f3f5f8; --warn: #8a3b12;
         --removed: #b8322a; --added: #1f5f8b; --before: #d9822b; --after: #2a7d4f; }
@@ -101,10 +100,7 @@ def web_svg(w, *, features, com_before, com_after, title: str) -> str:
     for i, f in feature_numbers(w, features):
         pts = f.footprint().oriented(True).points(chord)
         dash = ' stroke-dasharray="2,1.2"' if f.hidden_in_face_view else ""
-        if f.fills:
-            style = 'fill="#1f5f8b" fill-opacity="0.85" stroke="#1f5f8b"'
-        else:
-            style = 'fill="#ffffff" stroke="#b8322a"'
+        style = 'fill="#1f5f8b" fill-opacity="0.85" stroke="#1f5f8b"' if f.fills else 'fill="#ffffff" stroke="#b8322a"'
         out.append(f'<path d="{_path(pts)}" {style} stroke-width="0.6"{dash}/>')
         tx, ty = f.tag_point()
         colour = "#ffffff" if f.fills else "#b8322a"
@@ -422,8 +418,10 @@ def _safety(doc: dict) -> str:
              "no features" if g["feature"] is None else f"{g['feature']} ({_e(g['feature_kind'])}, "
                                                          f"{_e(g['feature_origin'])})",
              "–" if g["ligament_mm"] is None else
-             (f'<span class="bad">{_n(g["ligament_mm"], 2)}</span>' if g["below_pin_wall"] else _n(g["ligament_mm"], 2)),
-             _n(g["pin_wall_mm"], 2), f"{_n(g['edge_wall_mm'], 2)} ({_e(g['edge'])})"] for g in s.get("pin_ligaments", [])]
+             (f'<span class="bad">{_n(g["ligament_mm"], 2)}</span>' if g["below_pin_wall"]
+              else _n(g["ligament_mm"], 2)),
+             _n(g["pin_wall_mm"], 2), f"{_n(g['edge_wall_mm'], 2)} ({_e(g['edge'])})"]
+            for g in s.get("pin_ligaments", [])]
     out.append(_table(["web", "nearest feature", "least wall to it (mm)", "pin_wall asked (mm)",
                        "least wall to a free edge (mm)"], rows, left=2))
     out.append(f'<p class="note">{_e(s.get("pin_ligament_method", ""))}</p>')
@@ -436,7 +434,8 @@ def _safety(doc: dict) -> str:
                 for p in s["plug_walls"]]
         out.append(_table(["web", "feature", "wall to the rim (mm)", f"load at {_n(s['overspeed_rpm'], 0)} rpm (N)",
                            f"bearing at {_n(s['max_rpm'], 0)} rpm (MPa)", f"at {_n(s['overspeed_rpm'], 0)} rpm (MPa)",
-                           f"wall shear at {_n(s['max_rpm'], 0)} rpm (MPa)", f"at {_n(s['overspeed_rpm'], 0)} rpm (MPa)"],
+                           f"wall shear at {_n(s['max_rpm'], 0)} rpm (MPa)",
+                           f"at {_n(s['overspeed_rpm'], 0)} rpm (MPa)"],
                           rows, left=2))
         out.append(f'<p class="note">{_e(s["plug_wall_method"])}</p>')
     if "screen_caution" in s:

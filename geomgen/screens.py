@@ -22,8 +22,14 @@ import math
 import shapely
 
 from .kinds import cylinder_massprops
-from .loads import (bearing_stress_mpa, hub_hoop_stress_mpa, pin_hoop_stress_mpa, plug_load_n,
-                    press_fit_pressure_mpa, wall_shear_stress_mpa)
+from .loads import (
+    bearing_stress_mpa,
+    hub_hoop_stress_mpa,
+    pin_hoop_stress_mpa,
+    plug_load_n,
+    press_fit_pressure_mpa,
+    wall_shear_stress_mpa,
+)
 from .loops import Arc, Line, Loop
 
 #: a bore of the section whose centre and radius agree with the pin bore to this, mm, is the pin bore

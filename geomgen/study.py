@@ -14,7 +14,8 @@ import numpy as np
 
 from . import balance
 from .errors import BadInput
-from .rounding import num as _num, vec as _vec
+from .rounding import num as _num
+from .rounding import vec as _vec
 
 LBF_N = 4.4482216152605  # 1 lbf in N (exact by definition of the pound-force)
 CYCLE_STEP_DEG = 1

@@ -22,11 +22,13 @@ def summary_lines(doc: dict) -> list[str]:
                      f"({100 * t['left_share_of_measured']:.2f} % of the measured)")
         lines.append("  (the balance factor below is against the design target; the trim answers the measurement)")
     lines += [
-             f"balance factor asked {crank['balance_factor_asked']:.3f}, achieved {crank['balance_factor_achieved']:.4f} "
+             f"balance factor asked {crank['balance_factor_asked']:.3f}, "
+             f"achieved {crank['balance_factor_achieved']:.4f} "
              f"(deviation {crank['deviation_bf_percent']:.3f} %, allowed {crank['bf_tolerance_percent']:g} %)",
              f"bob weight to hang on the assembled crank {crank['bob_weight_g']:.1f} g; the webs counter "
              f"{crank['countered_at_pin_g']:.1f} g at the pin radius",
-             f"crank deviation {math.hypot(*crank['deviation_gmm']):.1f} g*mm; ISO 21940-11 G{crank['iso_21940_11']['grade_mm_s']:g} "
+             f"crank deviation {math.hypot(*crank['deviation_gmm']):.1f} g*mm; "
+             f"ISO 21940-11 G{crank['iso_21940_11']['grade_mm_s']:g} "
              f"permits {crank['iso_21940_11']['permissible_residual_gmm']:.1f} g*mm at max_rpm",
              f"couple {math.hypot(*crank['couple_gmm2']):.0f} g*mm^2 (+-{crank['plane_unbalance_gmm']:.1f} g*mm in the "
              f"webs' planes)"]

@@ -23,8 +23,9 @@ import numpy as np
 import pytest
 
 import geomgen
-from conftest import minimal_job_dict, toml_dumps
+
 import plancheck as pc
+from conftest import minimal_job_dict, toml_dumps
 
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = ROOT / "samples"
@@ -146,7 +147,8 @@ def test_trim_takes_off_the_heavy_spot_the_same_from_memory_or_folder(tmp_path):
     b = geomgen.trim(job, previous=folder, unbalance=44.0, angle="40 deg")
     assert [w.features for w in a.webs] == [w.features for w in b.webs]
     assert a.trim["measured_gmm"] == pytest.approx(0.8 * 55.0) and b.trim["from"] == str(folder)
-    # README "Commands" (trim) and "Frame": the webs change by minus the heavy spot U (-sin A, cos A), A ccw from the pin;
+    # README "Commands" (trim) and "Frame": the webs change by minus the heavy spot U (-sin A, cos A), A ccw from
+    # the pin;
     # web b's x is mirrored into the crank frame; planned to 1 % of U per web
     a_rad = math.radians(40.0)
     want = -44.0 * np.array([-math.sin(a_rad), math.cos(a_rad)])

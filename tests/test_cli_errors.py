@@ -10,8 +10,9 @@ import sys
 
 import pytest
 
-from conftest import write_job
 from geomgen.cli import main
+
+from conftest import write_job
 
 
 def run(argv, capsys) -> tuple[int, str, str]:

@@ -59,8 +59,9 @@ def _props_by_part(path):
 def test_crank_step_holds_both_twin_webs_as_named_valid_solids(built):
     from OCP.BRepCheck import BRepCheck_Analyzer
 
-    import plancheck as pc
     from geomgen.export import read_step
+
+    import plancheck as pc
 
     solids = read_step(built / "crank.step")
     assert [n for n, _ in solids] == NAMES

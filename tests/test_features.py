@@ -20,9 +20,20 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from geomgen.errors import BadInput
-from geomgen.features import (Hole, Plug, Pocket, cone_massprops, cylinder_massprops,
-                              feature_from_table, feature_massprops, footprint, footprint_polygon,
-                              kidney_loop, plug_density_of as plug_density, z_range)
+from geomgen.features import (
+    Hole,
+    Plug,
+    Pocket,
+    cone_massprops,
+    cylinder_massprops,
+    feature_from_table,
+    feature_massprops,
+    footprint,
+    footprint_polygon,
+    kidney_loop,
+    z_range,
+)
+from geomgen.features import plug_density_of as plug_density
 from geomgen.loops import circle
 from geomgen.materials import MATERIALS
 from geomgen.section import WebSection

@@ -21,11 +21,11 @@ import sys
 import numpy as np
 import pytest
 
-from conftest import minimal_job_dict, toml_dumps
-import plancheck as pc
-
 from geomgen.features import feature_from_table, feature_massprops
 from geomgen.massprops import MassProps
+
+import plancheck as pc
+from conftest import minimal_job_dict, toml_dumps
 
 STEEL = 7.85
 PLUG = 17.6

@@ -10,7 +10,6 @@ import numpy as np
 import pytest
 from scipy import integrate
 
-from conftest import minimal_job_dict, toml_dumps
 from geomgen import job as jobmod
 from geomgen import pipeline
 from geomgen.errors import BadInput
@@ -18,6 +17,8 @@ from geomgen.features import feature_from_table
 from geomgen.kinds import Radial, cylinder_massprops
 from geomgen.loops import Loop, circle
 from geomgen.section import WebSection, outline_web, parametric_web
+
+from conftest import minimal_job_dict, toml_dumps
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 STEEL = 7.85

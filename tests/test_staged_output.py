@@ -25,10 +25,9 @@ def test_writes_whole_on_success(tmp_path):
 
 def test_exception_inside_leaves_nothing(tmp_path):
     out = tmp_path / "result"
-    with pytest.raises(RuntimeError):
-        with staged(out, force=False) as stage:
-            write_files(stage, {"a.json": b"{}"})
-            raise RuntimeError("stage failed half way")
+    with pytest.raises(RuntimeError), staged(out, force=False) as stage:
+        write_files(stage, {"a.json": b"{}"})
+        raise RuntimeError("stage failed half way")
     assert not out.exists()
     assert list(tmp_path.iterdir()) == []             # no hidden .result.writing-* folder either
 
@@ -37,10 +36,9 @@ def test_exception_inside_keeps_the_old_folder_with_force(tmp_path):
     out = tmp_path / "result"
     out.mkdir()
     (out / "old.txt").write_text("keep me")
-    with pytest.raises(RuntimeError):
-        with staged(out, force=True) as stage:
-            write_files(stage, {"new.txt": b"n"})
-            raise RuntimeError("boom")
+    with pytest.raises(RuntimeError), staged(out, force=True) as stage:
+        write_files(stage, {"new.txt": b"n"})
+        raise RuntimeError("boom")
     assert _tree(out) == ["old.txt"] and (out / "old.txt").read_text() == "keep me"
     assert [p.name for p in tmp_path.iterdir()] == ["result"]
 
@@ -49,9 +47,8 @@ def test_refuses_a_non_empty_folder_without_force(tmp_path):
     out = tmp_path / "result"
     out.mkdir()
     (out / "mine.txt").write_text("user data")
-    with pytest.raises(BadInput, match="--force"):
-        with staged(out, force=False):
-            pytest.fail("must not get here")
+    with pytest.raises(BadInput, match="--force"), staged(out, force=False):
+        pytest.fail("must not get here")
     with pytest.raises(BadInput, match="not empty"):
         check_target(out, force=False)
     assert _tree(out) == ["mine.txt"] and (out / "mine.txt").read_text() == "user data"

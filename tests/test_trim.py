@@ -17,8 +17,8 @@ import shutil
 import numpy as np
 import pytest
 
-from conftest import minimal_job_dict, toml_dumps
 import plancheck as pc
+from conftest import minimal_job_dict, toml_dumps
 
 STEEL = 7.85
 

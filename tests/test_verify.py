@@ -6,7 +6,6 @@ STEP reader), trimesh (mesh integrals, is_volume), and the STEP standard's
 own text (ISO 10303-214 schema name, SI_UNIT(.MILLI.,.METRE.)).
 """
 
-import math
 
 import numpy as np
 import pytest
@@ -64,6 +63,7 @@ def test_gprop_product_of_inertia_sign():
     OpenCascade's figure, taken as products with the minus sign, must equal
     the sum of its two boxes moved by the parallel-axis theorem."""
     import cadquery as cq
+
     from geomgen.verify import solid_massprops
 
     ell = cq.Solid.makeBox(10, 2, 3).fuse(cq.Solid.makeBox(2, 8, 3, cq.Vector(0, 2, 0)))
@@ -102,6 +102,7 @@ def test_step_reimports_with_names_and_same_properties(web, exported):
 
 def test_step_is_ap214_in_millimetres_and_settings_restored(web, tmp_path):
     from OCP.Interface import Interface_Static
+
     from geomgen.export import write_step
 
     Interface_Static.SetCVal_s("write.step.schema", "AP203")
@@ -120,6 +121,7 @@ def test_step_is_ap214_in_millimetres_and_settings_restored(web, tmp_path):
 
 def test_every_stl_is_a_closed_volume_within_the_bound(web, exported):
     import trimesh
+
     from geomgen.verify import compare, exact_massprops, mesh_bound, mesh_web_massprops
 
     for key in ("stl", "plugs_stl"):
@@ -151,6 +153,7 @@ def test_stl_tolerance_changes_the_mesh(web, tmp_path):
 
 def test_mesh_massprops_refuses_an_open_mesh(tmp_path):
     import trimesh
+
     from geomgen.verify import mesh_massprops
 
     mesh = trimesh.creation.box(extents=(10, 10, 10))

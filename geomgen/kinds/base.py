@@ -146,7 +146,7 @@ class FeatureKind:
     def massprops(self, *, thickness: float, web_density: float, plug_density: float | None = None) -> MassProps:
         raise NotImplementedError
 
-    def on(self, section) -> "FeatureKind":
+    def on(self, section) -> FeatureKind:
         """This feature placed on a web section (a radial hole finds its rim); most kinds need nothing."""
         return self
 

@@ -9,8 +9,18 @@ from .. import loops
 from ..drills import designation
 from ..errors import BadInput
 from ..massprops import MassProps
-from .base import (Dimension, FeatureKind, ReportCells, axial_body, cone_massprops, cylinder_massprops, deg,
-                   face_z_range, mm, point_length)
+from .base import (
+    Dimension,
+    FeatureKind,
+    ReportCells,
+    axial_body,
+    cone_massprops,
+    cylinder_massprops,
+    deg,
+    face_z_range,
+    mm,
+    point_length,
+)
 
 
 @dataclass(frozen=True)

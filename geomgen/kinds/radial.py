@@ -18,7 +18,7 @@ import numpy as np
 from .. import loops
 from ..drills import designation
 from ..errors import BadInput
-from .base import (Dimension, FeatureKind, ReportCells, cone_massprops, deg, mm, point_length)
+from .base import Dimension, FeatureKind, ReportCells, cone_massprops, deg, mm, point_length
 from .radial_maths import QUADRATURE_NODES, axes, full_diameter_volume, point_rotation, rim_distance
 
 #: how far outside the rim the drill starts, mm
@@ -84,7 +84,7 @@ class Radial(FeatureKind):
                            f"of the {thickness:g} mm web; need {r:g} < z < {thickness - r:g}")
 
     # ---------------------------------------------------------------- on the web
-    def on(self, section) -> "Radial":
+    def on(self, section) -> Radial:
         placed = replace(self, rim=section.outer)
         placed._require_rim("radial hole")
         return placed

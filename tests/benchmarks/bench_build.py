@@ -95,7 +95,8 @@ def main(argv=None) -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--repeat", type=int, default=3)
     args = parser.parse_args(argv)
-    fmt = "{:<12} wall {wall:6.2f} s  (import {import:5.2f}, build {build:5.2f}, export {export:5.2f}, props {props:5.3f})"
+    fmt = ("{:<12} wall {wall:6.2f} s  (import {import:5.2f}, build {build:5.2f}, export {export:5.2f}, "
+           "props {props:5.3f})")
     results = {}
     for n in (6, 24, 96):
         results[n] = best(GEOMGEN, str(n), repeat=args.repeat)

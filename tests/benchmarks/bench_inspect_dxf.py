@@ -22,6 +22,7 @@ import time
 from pathlib import Path
 
 import pytest
+
 from timing import emit, interleaved_medians
 
 REPEATS = 3

@@ -22,7 +22,6 @@ from __future__ import annotations
 
 import argparse
 import json
-import statistics
 import subprocess
 import sys
 import tempfile
@@ -78,8 +77,8 @@ print(json.dumps({"import": t1 - t0, "build": t2 - t1, "export": t3 - t2, "props
 
 def _jobs(folder: Path) -> dict[str, Path]:
     """The benchmark jobs (invented demo data: the design.md example, and a teardrop web of our own)."""
-    from conftest import DROP, minimal_job_dict, toml_dumps
     import plancheck as pc
+    from conftest import DROP, minimal_job_dict, toml_dumps
 
     arcs, lines = pc.pear_geometry(r_big=58.0, y_big=-8.0, r_small=25.0, y_pin=32.0)
     pc.write_outline_dxf(folder / "pear.dxf", arcs, lines)
@@ -104,7 +103,8 @@ def _wall(cmd, cwd) -> float:
 
 
 def planning_alone(jobs: dict[str, Path], repeat: int) -> dict[str, float]:
-    from geomgen import job as jobmod, pipeline
+    from geomgen import job as jobmod
+    from geomgen import pipeline
 
     times = {}
     for name, path in jobs.items():

@@ -14,6 +14,7 @@ import sys
 from pathlib import Path
 
 import pytest
+
 from timing import emit, interleaved_medians
 
 TARGET = 0.3
