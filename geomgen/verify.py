@@ -40,7 +40,7 @@ UNBALANCE_LENGTH_MM = 1.0
 
 
 #: relative error asked of OpenCascade's volume integration (its adaptive Gauss rule)
-GPROP_EPS = 1e-9
+GPROP_EPS = 1e-11
 
 
 def _shape(obj):

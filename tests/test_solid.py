@@ -185,9 +185,6 @@ def test_kidney_pockets_closed_form_sharp_corners():
 def test_features_against_feature_massprops():
     """Kidney with corner radii and holes from both faces: the B-rep (OpenCascade)
     against the analytic feature model of geomgen.features, to 1e-6."""
-    features_mod = pytest.importorskip("geomgen.features")
-    if not hasattr(features_mod, "feature_massprops"):
-        pytest.skip("geomgen.features.feature_massprops not there yet")
     from geomgen.solid import build_web
     from geomgen.verify import exact_massprops
 
@@ -196,7 +193,7 @@ def test_features_against_feature_massprops():
              *HOLES[:3], PLUG]
     web = build_web(section(), feats, name="f")
     predicted = section().massprops() + sum(
-        (features_mod.feature_massprops(f, thickness=T, web_density=RHO) for f in feats), MassProps.zero())
+        (f.massprops(thickness=T, web_density=RHO) for f in feats), MassProps.zero())
     exact = exact_massprops(web)
     assert exact.mass == pytest.approx(predicted.mass, rel=1e-6)
     assert np.allclose(exact.first_moment, predicted.first_moment, rtol=0, atol=1e-6 * abs(predicted.mass) * D)

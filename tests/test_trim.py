@@ -56,9 +56,15 @@ def planned(tmp_path_factory):
 
 
 def test_trim_reads_the_plan_folder_as_written(planned):
-    tmp, job, _, _ = planned
+    """plan.json as plan wrote it (rows with their "effect") is a good --from: the trim takes the measured
+    spot off as it does from the cleaned copy."""
+    tmp, job, _, before = planned
+    out = tmp / "direct"
     assert pc.run_cli(["trim", job, "--from", tmp / "plan", "--unbalance", "300", "--angle", "40",
-                       "--out", tmp / "direct"]) == 0
+                       "--out", out]) == 0
+    change = _crank_sum(out) - before
+    assert np.linalg.norm(change + _heavy_spot(300.0, 40.0)) <= 0.02 * 300.0, change
+    assert pc.read_plan(out)["trim"]["measured_gmm"] == 300.0
 
 
 @pytest.mark.parametrize("unbalance, angle, u_gmm", [
