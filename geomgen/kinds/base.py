@@ -211,6 +211,39 @@ class FeatureKind:
         return None
 
 
+class RoundOnFace:
+    """What a feature centred at (x, y) on a face with a `diameter` (a hole, a plug bore) shows: its circle,
+    its number just outside it, its distance from the crank axis and its diameter."""
+
+    x: float
+    y: float
+    diameter: float
+
+    def footprint(self) -> Loop:
+        from ..loops import circle
+
+        return circle(self.x, self.y, 0.5 * self.diameter)
+
+    def tag_point(self) -> tuple[float, float]:
+        return (self.x, self.y)
+
+    @property
+    def tag_clearance(self) -> float:
+        return 0.5 * self.diameter
+
+    def dimensions(self) -> list[Dimension]:
+        out = []
+        if math.hypot(self.x, self.y) > 1e-6:
+            out.append(Dimension("from_axis", point=(self.x, self.y)))
+        out.append(Dimension("diameter", point=(self.x, self.y), radius=0.5 * self.diameter,
+                             angle=math.degrees(math.atan2(self.y, self.x)) + 45.0))
+        return out
+
+    def clockwise_key(self, rank: int) -> tuple:
+        """(rank, angle clockwise from +Y, farthest first): the order a machinist works round the face."""
+        return (rank, round(-math.atan2(-self.x, self.y), 6) % (2 * math.pi), -math.hypot(self.x, self.y))
+
+
 # ---------------------------------------------------------------- closed-form bodies
 def cylinder_massprops(*, radius: float, height: float, density_g_cm3: float) -> MassProps:
     """A solid cylinder, base centred at the origin, axis +Z (mm, g/cm^3).

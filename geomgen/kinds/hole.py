@@ -2,17 +2,15 @@
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
-from .. import loops
 from ..drills import designation
 from ..errors import BadInput
 from ..massprops import MassProps
 from .base import (
-    Dimension,
     FeatureKind,
     ReportCells,
+    RoundOnFace,
     axial_body,
     cone_massprops,
     cylinder_massprops,
@@ -24,7 +22,7 @@ from .base import (
 
 
 @dataclass(frozen=True)
-class Hole(FeatureKind):
+class Hole(RoundOnFace, FeatureKind):
     """A drilled hole.
 
     x, y : centre on the face, mm (web frame)
@@ -88,9 +86,6 @@ class Hole(FeatureKind):
                            f"goes past the {thickness:g} mm web; make it through = true or shallower")
 
     # ---------------------------------------------------------------- geometry
-    def footprint(self) -> loops.Loop:
-        return loops.circle(self.x, self.y, 0.5 * self.diameter)
-
     def z_range(self, thickness):
         if self.through:
             return (0.0, thickness)
@@ -108,7 +103,7 @@ class Hole(FeatureKind):
         return None if self.through else self.depth
 
     def order_key(self):
-        return (1, round(-math.atan2(-self.x, self.y), 6) % (2 * math.pi), -math.hypot(self.x, self.y))
+        return self.clockwise_key(1)
 
     def removed(self, thickness: float, density: float) -> MassProps:
         """The material the drill takes out (a positive body), web frame."""
@@ -138,13 +133,6 @@ class Hole(FeatureKind):
     def label(self) -> str:
         return f"hole {self.diameter:g} mm {self._depth_words()} at ({self.x:g}, {self.y:g}), {self.face} face"
 
-    def tag_point(self):
-        return (self.x, self.y)
-
-    @property
-    def tag_clearance(self) -> float:  # type: ignore[override]
-        return 0.5 * self.diameter
-
     def report_cells(self):
         depth = "through" if self.through else f"{self.depth:,.2f} + {self.point_length:,.2f} point"
         return ReportCells("hole", f"x {self.x:,.2f}, y {self.y:,.2f} mm", f"{self.diameter:,.2f}", depth)
@@ -169,14 +157,6 @@ class Hole(FeatureKind):
         angle = deg(self.point_angle) + (" (flat)" if self.point_angle >= 180.0 else "")
         return (mm(self.x), mm(self.y), mm(self.diameter), designation(self.diameter, drill_series), mm(depth),
                 travel, angle)
-
-    def dimensions(self):
-        out = []
-        if math.hypot(self.x, self.y) > 1e-6:
-            out.append(Dimension("from_axis", point=(self.x, self.y)))
-        out.append(Dimension("diameter", point=(self.x, self.y), radius=0.5 * self.diameter,
-                             angle=math.degrees(math.atan2(self.y, self.x)) + 45.0))
-        return out
 
     def tool(self, thickness):
         from . import _tools

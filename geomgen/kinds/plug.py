@@ -5,7 +5,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .. import loops
 from ..drills import designation
 from ..errors import BadInput
 from ..materials import MATERIALS
@@ -13,11 +12,11 @@ from ..materials import custom as custom_material
 from ..materials import material as named_material
 from ..plugbore import plug_bore
 from ..units import to_internal
-from .base import Dimension, FeatureKind, ReportCells, axial_body, cylinder_massprops, face_z_range, mm
+from .base import FeatureKind, ReportCells, RoundOnFace, axial_body, cylinder_massprops, face_z_range, mm
 
 
 @dataclass(frozen=True)
-class Plug(FeatureKind):
+class Plug(RoundOnFace, FeatureKind):
     """A flat-bottomed bore filled flush by a heavy-metal plug.
 
     x, y : centre, mm;  diameter : mm;  length : mm (= thickness for a
@@ -81,9 +80,6 @@ class Plug(FeatureKind):
         return self.plug_density() * 1e-3 * math.pi * 0.25 * self.diameter ** 2 * self.length
 
     # ---------------------------------------------------------------- geometry
-    def footprint(self) -> loops.Loop:
-        return loops.circle(self.x, self.y, 0.5 * self.diameter)
-
     def z_range(self, thickness):
         return face_z_range(self.face, thickness, self.length)
 
@@ -98,7 +94,7 @@ class Plug(FeatureKind):
         return None if self.through_web(thickness) else self.length
 
     def order_key(self):
-        return (2, round(-math.atan2(-self.x, self.y), 6) % (2 * math.pi), -math.hypot(self.x, self.y))
+        return self.clockwise_key(2)
 
     def massprops(self, *, thickness, web_density, plug_density=None):
         rho_plug = self.plug_density() if plug_density is None else plug_density
@@ -115,13 +111,6 @@ class Plug(FeatureKind):
 
     def label(self) -> str:
         return f"plug {self.diameter:g} mm x {self.length:g} mm at ({self.x:g}, {self.y:g}), {self._what()}"
-
-    def tag_point(self):
-        return (self.x, self.y)
-
-    @property
-    def tag_clearance(self) -> float:  # type: ignore[override]
-        return 0.5 * self.diameter
 
     def report_cells(self):
         return ReportCells(f"plug ({self.material or 'custom'})", f"x {self.x:,.2f}, y {self.y:,.2f} mm",
@@ -163,14 +152,6 @@ class Plug(FeatureKind):
         finish = f"{plug_fit.split('/')[0]} " + ("through" if through else "flat")
         return (mm(self.x), mm(self.y), mm(self.diameter), finish, mm(self.length), self.material or "custom",
                 f"{rho:.2f}" if rho is not None else "", mm(self.length))
-
-    def dimensions(self):
-        out = []
-        if math.hypot(self.x, self.y) > 1e-6:
-            out.append(Dimension("from_axis", point=(self.x, self.y)))
-        out.append(Dimension("diameter", point=(self.x, self.y), radius=0.5 * self.diameter,
-                             angle=math.degrees(math.atan2(self.y, self.x)) + 45.0))
-        return out
 
     def tool(self, thickness):
         from . import _tools
