@@ -236,3 +236,46 @@ def test_machine_reading_to_crank_frame(rotation, against, expected):
     assert pipeline.crank_frame_angle(30.0, rotation=rotation, against_rotation=against) == expected
     spot = pipeline.heavy_spot_vector(100.0, expected)
     assert spot == pytest.approx([-100.0 * math.sin(math.radians(expected)), 100.0 * math.cos(math.radians(expected))])
+
+
+@pytest.mark.cad
+def test_couple_matches_the_exported_solids(tmp_path):
+    """The couple in plan.json against the products of inertia of web-a.step and web-b.step, read back and
+    integrated by OpenCascade here (GProp on the STEP's solids, not geomgen's MassProps): web b is placed as
+    in crank.step, (x, y, z) -> (-x, y, -z - gap), and the couple is taken about the rod's plane z = -gap/2."""
+    from OCP.BRepGProp import BRepGProp
+    from OCP.GProp import GProp_GProps
+
+    from geomgen.cli import main
+    from geomgen.export import read_step
+
+    hole = {"kind": "hole", "x": 40.0, "y": -30.0, "diameter": 10.0, "depth": 8.0, "point_angle": 180.0}
+    path = tmp_path / "job.toml"
+    path.write_text(toml_dumps(minimal_job_dict({"web.features": [hole]})))
+    assert main(["build", str(path), "--out", str(tmp_path / "out")]) == 0
+    gap = 20.0
+
+    def raw(name):
+        """∫x dm, ∫y dm, ∫xz dm, ∫yz dm of one web file (steel), web frame."""
+        total = np.zeros(4)
+        for _, shape in read_step(tmp_path / "out" / f"web-{name}.step"):
+            p = GProp_GProps()
+            BRepGProp.VolumeProperties_s(shape.wrapped if hasattr(shape, "wrapped") else shape, p, 1e-11)
+            m, c, inertia = p.Mass() * STEEL * 1e-3, p.CentreOfMass(), p.MatrixOfInertia()
+            # OpenCascade's products about the centre carry the minus sign: I_xz = -∫(x-xc)(z-zc) dm
+            xz = -inertia.Value(1, 3) * STEEL * 1e-3 + m * c.X() * c.Z()
+            yz = -inertia.Value(2, 3) * STEEL * 1e-3 + m * c.Y() * c.Z()
+            total += [m * c.X(), m * c.Y(), xz, yz]
+        return total
+
+    ax, ay, axz, ayz = raw("a")
+    bx, by, bxz, byz = raw("b")
+    z_mid = -gap / 2
+    # web b turned: x -> -x, z -> -z - gap, so xz -> xz + gap x, yz -> -yz - gap y
+    cx = (axz - z_mid * ax) + ((bxz + gap * bx) - z_mid * (-bx))
+    cy = (ayz - z_mid * ay) + ((-byz - gap * by) - z_mid * by)
+    import json
+
+    doc = json.loads((tmp_path / "out" / "plan.json").read_text())
+    assert doc["crank"]["couple_gmm2"] == pytest.approx([cx, cy], rel=1e-5, abs=1e-3)
+    assert abs(cx) > 1000.0                 # the off-axis hole on both webs' outer faces: the x couples add
