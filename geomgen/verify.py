@@ -6,7 +6,11 @@ Three figures of the same web come from three independent roads:
   (geomgen.section / geomgen.features), no kernel;
 - exact: OpenCascade's volume integrals over the B-rep (GProp), one property
   set per solid at its own density, merged by MassProps `+`;
-- mesh: trimesh's integrals over the exported STL triangles.
+- mesh: the volume integrals of the exported STL's triangles, re-read from
+  the file (each triangle with the origin spans a signed tetrahedron; the
+  tests hold these figures to trimesh's on the same files).  An STL from
+  elsewhere (`geomgen inspect`) is read and integrated by trimesh instead,
+  which copes with ASCII files and loose vertices.
 
 Exact vs predicted must agree to round-off: beyond UNBALANCE_REL (1e-4) of
 the unbalance scale it is a modelling bug and raises VerificationFailed.
@@ -132,19 +136,67 @@ def mesh_massprops(stl_path, density_g_cm3: float) -> MassProps:
     return _mesh_props(_load_volume(stl_path), density_g_cm3)
 
 
+def triangle_massprops(vertices, faces, density_g_cm3: float) -> MassProps:
+    """Properties of a closed, outward-wound triangle mesh (mm) of uniform density.
+
+    vertices : (m, 3) float, mm;  faces : (k, 3) int.  Each triangle (a, b, c)
+    and the origin span a tetrahedron of signed volume det[a, b, c] / 6, with
+    first moment V (a + b + c) / 4 and second moment V / 20 (a a^T + b b^T +
+    c c^T + s s^T), s = a + b + c (the simplex covariance closed form); the sums
+    over a closed surface are the integrals over the solid it bounds.
+    """
+    tri = np.asarray(vertices, dtype=float)[np.asarray(faces)]
+    a, b, c = tri[:, 0], tri[:, 1], tri[:, 2]
+    vol = np.einsum("ij,ij->i", a, np.cross(b, c)) / 6.0
+    s = a + b + c
+    first = (vol[:, None] * s).sum(axis=0) / 4.0
+    outer = (np.einsum("ti,tj->tij", a, a) + np.einsum("ti,tj->tij", b, b) + np.einsum("ti,tj->tij", c, c)
+             + np.einsum("ti,tj->tij", s, s))
+    second = np.einsum("t,tij->ij", vol, outer) / 20.0
+    rho = float(density_g_cm3) * 1e-3  # g/mm^3
+    volume = float(vol.sum())
+    return MassProps(rho * volume, rho * first, rho * second, volume)
+
+
+def _written_mesh(stl_path):
+    """(vertices, faces) of an STL geomgen wrote, re-read; VerificationFailed unless a closed volume."""
+    from .export import closed_volume_problem, indexed_mesh, read_stl_triangles
+
+    vertices, faces = indexed_mesh(read_stl_triangles(stl_path))
+    problem = closed_volume_problem(vertices, faces)
+    if problem is not None:
+        raise VerificationFailed(f"{stl_path}: the written mesh is not a closed volume: {problem}")
+    return vertices, faces
+
+
 def mesh_web_massprops(web, paths: dict) -> MassProps:
-    """The web from its exported meshes: the body STL at the web density, and
-    each connected piece of the plugs STL at the density of the plug whose
-    axis it surrounds."""
-    total = mesh_massprops(paths["stl"], web.density_g_cm3)
+    """The web from its exported meshes, re-read: the body STL at the web
+    density, and each plug's triangles in the plugs STL at that plug's density.
+
+    A triangle belongs to the plug whose circle (axis and radius) has the
+    least power c^2 - r^2 for the triangle's centroid at distance c from the
+    axis: negative or zero on its own plug's face, positive on every other
+    (plugs never touch), for any mix of diameters.  Each plug's share must
+    itself be a closed volume."""
+    from .export import closed_volume_problem
+
+    vertices, faces = _written_mesh(paths["stl"])
+    total = triangle_massprops(vertices, faces, web.density_g_cm3)
     if web.plugs:
-        pieces = _load_volume(paths["plugs_stl"]).split(only_watertight=True)
-        if len(pieces) != len(web.plugs):
-            raise VerificationFailed(f"{paths['plugs_stl']}: {len(pieces)} closed pieces for {len(web.plugs)} plugs")
-        axes = np.array([[web.features[p.index].x, web.features[p.index].y] for p in web.plugs])
-        for piece in pieces:
-            k = int(np.argmin(np.linalg.norm(axes - piece.center_mass[:2], axis=1)))
-            total = total + _mesh_props(piece, web.plugs[k].density_g_cm3)
+        vertices, faces = _written_mesh(paths["plugs_stl"])
+        plugs = [web.features[p.index] for p in web.plugs]
+        axes = np.array([[f.x, f.y] for f in plugs])
+        radius_sq = np.array([(0.5 * f.diameter) ** 2 for f in plugs])
+        centroids = vertices.astype(float)[faces].mean(axis=1)[:, :2]
+        power = ((centroids[:, None, :] - axes[None, :, :]) ** 2).sum(axis=2) - radius_sq[None, :]
+        owner = np.argmin(power, axis=1)
+        for k, plug in enumerate(web.plugs):
+            own = faces[owner == k]
+            problem = closed_volume_problem(vertices, own)
+            if problem is not None:
+                raise VerificationFailed(f"{paths['plugs_stl']}: the triangles of plug {k + 1} are not a closed "
+                                         f"volume: {problem}")
+            total = total + triangle_massprops(vertices, own, plug.density_g_cm3)
     return total
 
 
