@@ -6,7 +6,6 @@ STEP reader), trimesh (mesh integrals, is_volume), and the STEP standard's
 own text (ISO 10303-214 schema name, SI_UNIT(.MILLI.,.METRE.)).
 """
 
-import math
 
 import numpy as np
 import pytest
@@ -64,6 +63,7 @@ def test_gprop_product_of_inertia_sign():
     OpenCascade's figure, taken as products with the minus sign, must equal
     the sum of its two boxes moved by the parallel-axis theorem."""
     import cadquery as cq
+
     from geomgen.verify import solid_massprops
 
     ell = cq.Solid.makeBox(10, 2, 3).fuse(cq.Solid.makeBox(2, 8, 3, cq.Vector(0, 2, 0)))
@@ -102,6 +102,7 @@ def test_step_reimports_with_names_and_same_properties(web, exported):
 
 def test_step_is_ap214_in_millimetres_and_settings_restored(web, tmp_path):
     from OCP.Interface import Interface_Static
+
     from geomgen.export import write_step
 
     Interface_Static.SetCVal_s("write.step.schema", "AP203")
@@ -120,6 +121,7 @@ def test_step_is_ap214_in_millimetres_and_settings_restored(web, tmp_path):
 
 def test_every_stl_is_a_closed_volume_within_the_bound(web, exported):
     import trimesh
+
     from geomgen.verify import compare, exact_massprops, mesh_bound, mesh_web_massprops
 
     for key in ("stl", "plugs_stl"):
@@ -151,6 +153,7 @@ def test_stl_tolerance_changes_the_mesh(web, tmp_path):
 
 def test_mesh_massprops_refuses_an_open_mesh(tmp_path):
     import trimesh
+
     from geomgen.verify import mesh_massprops
 
     mesh = trimesh.creation.box(extents=(10, 10, 10))
@@ -195,6 +198,7 @@ def test_numpy_mesh_integrals_match_trimesh_on_every_written_stl(web, exported):
     """The mesh road integrates the written triangles itself; trimesh (an independent
     library) must find the same mass, first moment and inertia in the same files."""
     import trimesh
+
     from geomgen.export import indexed_mesh, read_stl_triangles
     from geomgen.verify import triangle_massprops
 
@@ -215,6 +219,7 @@ def test_triangle_massprops_of_a_box_is_the_closed_form():
     """A 10 x 20 x 30 mm box off the origin, as triangles: mass, centre and inertia
     m (b^2 + c^2) / 12 about its centre (Machinery's Handbook)."""
     import trimesh
+
     from geomgen.verify import triangle_massprops
 
     mesh = trimesh.creation.box(extents=(10, 20, 30))
@@ -230,6 +235,7 @@ def test_closed_volume_check_finds_holes_and_flipped_triangles():
     """The closure test against trimesh's own verdicts on a cube (is_watertight,
     is_winding_consistent, is_volume)."""
     import trimesh
+
     from geomgen.export import closed_volume_problem
 
     cube = trimesh.creation.box(extents=(10, 10, 10))
