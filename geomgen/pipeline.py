@@ -491,13 +491,14 @@ def _finish(args, job, command, webs, *, with_study=True, with_shop=True, trim=N
     from . import study as study_mod
 
     study_result = study_of(job) if with_study else None
+    study_files = study_mod.render_soon(study_result) if study_result is not None else None
     with staged(args.out, force=args.force) as stage:
         verified = build_and_verify(job, webs, stage)
         doc = plan_document(job, command, webs, verified, study_result, trim)
         _clean_for_json(verified)
         files = {"plan.json": plan_json_bytes(_jsonable(doc))}
-        if study_result is not None:
-            files.update(study_mod.render(study_result))
+        if study_files is not None:
+            files.update(study_files())
         if with_shop:
             files.update(_shop_files(job, doc, webs, study_result, files.get("study.svg")))
         write_files(stage, files)

@@ -330,6 +330,36 @@ def summary_lines(result: dict) -> list[str]:
     return lines
 
 
+def render_soon(result: dict):
+    """Start drawing `render(result)` on another core; returns a function that gives its files.
+
+    matplotlib costs about half a second to import and draw, time the plan can spend in
+    the CAD kernel meanwhile.  Where the platform forks (Linux), a forked worker draws
+    while the caller goes on; elsewhere, or if the worker fails, the files are drawn
+    when asked for.  Either way the bytes are those of `render(result)`.
+    """
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    if "fork" not in multiprocessing.get_all_start_methods():
+        return lambda: render(result)
+    try:
+        pool = ProcessPoolExecutor(max_workers=1, mp_context=multiprocessing.get_context("fork"))
+        pending = pool.submit(render, result)
+    except OSError:
+        return lambda: render(result)
+
+    def files() -> dict[str, bytes]:
+        try:
+            return pending.result()
+        except Exception:  # noqa: BLE001 - a broken worker is no reason to lose the picture
+            return render(result)
+        finally:
+            pool.shutdown(wait=True)
+
+    return files
+
+
 def render(result: dict) -> dict[str, bytes]:
     """The study's files: {"study.json": bytes, "study.svg": bytes}."""
     from .plots import study_svg  # matplotlib only when a picture is wanted
