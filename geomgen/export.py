@@ -14,10 +14,14 @@ them and puts the previous values back.
 
 STL: binary, one file for the body and one for all plugs.  The shape's old
 triangulation is cleared first (a shape keeps its first mesh), the mesh is
-made with an absolute chord tolerance, then re-read and repaired with trimesh
-(merge vertices, drop the zero-area triangles OpenCascade leaves at cone
-apexes) and written by trimesh; a mesh that is still not a closed volume is
-an error, not a file.
+made with an absolute chord tolerance and written by OpenCascade, then
+re-read with numpy and repaired: coincident vertices merged (exactly, on the
+single-precision coordinates the file holds) and the triangles that collapse
+to a line or a point dropped (OpenCascade leaves them at cone apexes).  The
+result is written only if it is a closed volume: every edge shared by exactly
+two triangles that run it in opposite directions, and a positive enclosed
+volume.  A mesh that fails that check goes through trimesh's general repair
+(imported only then); still not closed, it is an error, not a file.
 """
 
 from __future__ import annotations
@@ -25,6 +29,8 @@ from __future__ import annotations
 import os
 import tempfile
 from pathlib import Path
+
+import numpy as np
 
 from .errors import VerificationFailed
 
@@ -217,16 +223,89 @@ def _compound(shapes):
     return comp
 
 
+#: one binary STL triangle record: normal, three vertices (float32), attribute count
+STL_RECORD = np.dtype([("normal", "<f4", (3,)), ("vertices", "<f4", (3, 3)), ("attr", "<u2")])
+_STL_HEADER = b"geomgen binary STL, millimetres".ljust(80, b" ")
+
+
+def read_stl_triangles(path) -> np.ndarray:
+    """(n, 3, 3) float32, mm: the triangles of a binary STL file, as stored.
+
+    Raises BadInput if the file is not binary STL of the length its count says."""
+    data = Path(path).read_bytes()
+    count = int.from_bytes(data[80:84], "little") if len(data) >= 84 else -1
+    if count < 0 or len(data) != 84 + STL_RECORD.itemsize * count:
+        from .errors import BadInput
+        raise BadInput(f"{path}: not a binary STL file (its length does not match its triangle count)")
+    return np.frombuffer(data, dtype=STL_RECORD, count=count, offset=84)["vertices"]
+
+
+def indexed_mesh(triangles) -> tuple[np.ndarray, np.ndarray]:
+    """(vertices (m, 3) float32, faces (k, 3) int) from (n, 3, 3) triangles: vertices with
+    bit-equal coordinates merged, triangles left with a repeated vertex dropped.
+
+    The merge is exact on the float32 values a binary STL stores, so the file written from
+    the result re-reads with the same topology (+0.0 and -0.0 count as one value)."""
+    corners = np.ascontiguousarray(np.asarray(triangles, dtype=np.float32).reshape(-1, 3) + np.float32(0.0))
+    keys = corners.view(np.dtype((np.void, corners.dtype.itemsize * 3))).ravel()
+    _, first, inverse = np.unique(keys, return_index=True, return_inverse=True)
+    faces = inverse.reshape(-1, 3)
+    keep = (faces[:, 0] != faces[:, 1]) & (faces[:, 1] != faces[:, 2]) & (faces[:, 2] != faces[:, 0])
+    return corners[first], faces[keep]
+
+
+def closed_volume_problem(vertices, faces) -> str | None:
+    """Why the indexed mesh is not a closed, consistently wound volume, or None if it is.
+
+    Closed and consistently wound: every directed edge occurs once and its reverse once
+    (each edge shared by exactly two triangles running it in opposite directions, the
+    test trimesh calls watertight plus winding-consistent); then the enclosed volume,
+    the sum of det[a, b, c] / 6 over the triangles, must be positive (outward normals)."""
+    if len(faces) == 0:
+        return "no triangles"
+    n = np.int64(len(vertices))
+    a = faces.astype(np.int64)
+    b = np.roll(a, -1, axis=1)
+    edges = (a * n + b).ravel()
+    reverse = (b * n + a).ravel()
+    edges.sort()
+    if np.any(edges[1:] == edges[:-1]):
+        return "an edge is run twice in the same direction (inconsistent winding or a fold)"
+    reverse.sort()
+    if not np.array_equal(edges, reverse):
+        return "an edge belongs to one triangle only (a hole in the mesh)"
+    tri = vertices.astype(np.float64)[faces]
+    volume = np.einsum("ij,ij->i", tri[:, 0], np.cross(tri[:, 1], tri[:, 2])).sum() / 6.0
+    if not volume > 0:
+        return f"enclosed volume {volume:.6g} mm^3 is not positive (normals point inwards)"
+    return None
+
+
+def _write_indexed_stl(vertices, faces, path) -> None:
+    tri = vertices[faces]
+    normals = np.cross((tri[:, 1] - tri[:, 0]).astype(np.float64), (tri[:, 2] - tri[:, 0]).astype(np.float64))
+    length = np.linalg.norm(normals, axis=1, keepdims=True)
+    normals = np.divide(normals, length, out=np.zeros_like(normals), where=length > 0)
+    records = np.zeros(len(faces), dtype=STL_RECORD)
+    records["normal"] = normals
+    records["vertices"] = tri
+    with open(path, "wb") as out:
+        out.write(_STL_HEADER)
+        out.write(len(faces).to_bytes(4, "little"))
+        out.write(records.tobytes())
+
+
 def repaired_mesh(stl_path):
-    """The STL re-read by trimesh with coincident vertices merged and
-    zero-area triangles dropped (a trimesh.Trimesh)."""
+    """The STL re-read by trimesh with coincident vertices merged, zero-area
+    triangles dropped and normals fixed (a trimesh.Trimesh): the general
+    repair, for a mesh the quick one in `write_stl` did not close."""
     import trimesh
 
     mesh = trimesh.load_mesh(str(stl_path), file_type="stl", process=True)
     mesh.merge_vertices()
     mesh.update_faces(mesh.nondegenerate_faces())
     mesh.remove_unreferenced_vertices()
-    if not mesh.is_winding_consistent:  # costly on 1e5 faces; OCC's winding is usually right
+    if not mesh.is_winding_consistent:
         mesh.fix_normals()
     return mesh
 
@@ -268,13 +347,18 @@ def write_stl(shapes, path, *, tolerance: float = STL_TOLERANCE_MM,
         writer.ASCIIMode = False
         if not writer.Write(shape, raw):
             raise VerificationFailed(f"{path.name}: the STL writer failed")
-        mesh = repaired_mesh(raw)
+        vertices, faces = indexed_mesh(read_stl_triangles(raw))
+        problem = closed_volume_problem(vertices, faces)
+        if problem is not None:
+            # the general repair (slower, and trimesh costs a second to import)
+            mesh = repaired_mesh(raw)
+            vertices, faces = indexed_mesh(mesh.triangles)
+            problem = closed_volume_problem(vertices, faces)
     finally:
         os.unlink(raw)
-    if not mesh.is_volume:
-        raise VerificationFailed(f"{path.name}: the mesh is not a closed volume after repair "
-                                 f"(watertight={mesh.is_watertight}, winding={mesh.is_winding_consistent})")
-    mesh.export(str(path), file_type="stl")
+    if problem is not None:
+        raise VerificationFailed(f"{path.name}: the mesh is not a closed volume after repair: {problem}")
+    _write_indexed_stl(vertices, faces, path)
     return path
 
 

@@ -6,7 +6,9 @@ Three figures of the same web come from three independent roads:
   (geomgen.section / geomgen.features), no kernel;
 - exact: OpenCascade's volume integrals over the B-rep (GProp), one property
   set per solid at its own density, merged by MassProps `+`;
-- mesh: trimesh's integrals over the exported STL triangles.
+- mesh: trimesh (an independent, general-purpose library) re-reads the
+  exported STL files and integrates them, each closed plug piece at its own
+  density.
 
 Exact vs predicted must agree to round-off: beyond UNBALANCE_REL (1e-4) of
 the unbalance scale it is a modelling bug and raises VerificationFailed.

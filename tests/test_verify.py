@@ -192,3 +192,53 @@ def test_crank_assembly_places_web_b_mirrored():
     own_b = exact_massprops(b)
     assert np.allclose(placed_b.unbalance, own_b.mirrored_x().unbalance, atol=1e-6)
     assert placed_b.com[2] == pytest.approx(-30.0 - own_b.com[2], abs=1e-9)
+
+
+def test_closed_volume_check_finds_holes_and_flipped_triangles():
+    """The closure test against trimesh's own verdicts on a cube (is_watertight,
+    is_winding_consistent, is_volume)."""
+    import trimesh
+
+    from geomgen.export import closed_volume_problem
+
+    cube = trimesh.creation.box(extents=(10, 10, 10))
+    assert cube.is_volume and closed_volume_problem(cube.vertices, cube.faces) is None
+    open_faces = cube.faces[1:]
+    assert not trimesh.Trimesh(cube.vertices, open_faces, process=False).is_watertight
+    assert "one triangle only" in closed_volume_problem(cube.vertices, open_faces)
+    flipped = cube.faces.copy()
+    flipped[0] = flipped[0][::-1]
+    assert not trimesh.Trimesh(cube.vertices, flipped, process=False).is_winding_consistent
+    assert "same direction" in closed_volume_problem(cube.vertices, flipped)
+    inside_out = cube.faces[:, ::-1]
+    assert "not positive" in closed_volume_problem(cube.vertices, inside_out)
+
+
+def test_merge_drops_the_triangles_collapsed_at_a_point():
+    """Two coincident corners (as at a drill-point apex) make a triangle with a repeated
+    vertex: it is dropped; -0.0 and +0.0 are one coordinate (IEEE 754 equality)."""
+    from geomgen.export import indexed_mesh
+
+    tri = np.array([[[0, 0, 0], [1, 0, 0], [0, 1, 0]],
+                    [[-0.0, 0, 0], [0, 0, 0], [0, 0, 1]]], dtype=np.float32)
+    vertices, faces = indexed_mesh(tri)
+    assert len(vertices) == 4 and len(faces) == 1
+    assert np.array_equal(vertices[faces[0]], tri[0])
+
+
+def test_writing_a_web_stl_does_not_need_trimesh(tmp_path):
+    """The quick repair closes a web with pointed blind holes on its own: exporting it leaves
+    trimesh unimported (the general repair is only the fallback); trimesh then re-reads the
+    written file as a closed volume in the mesh check."""
+    import subprocess
+    import sys
+
+    code = ("import sys; from geomgen.features import Hole; from geomgen.section import parametric_web; "
+            "from geomgen.solid import build_web; from geomgen.export import export_web; "
+            "from geomgen.verify import mesh_massprops; "
+            "s = parametric_web(diameter=130.0, thickness=18.0, density_g_cm3=7.85, stroke=64.0, pin_bore=28.0); "
+            "w = build_web(s, [Hole(0.0, -40.0, 10.0, 8.0), Hole(20.0, -40.0, 8.0, 6.0)], name='a'); "
+            f"p = export_web(w, {str(tmp_path)!r}); print('trimesh' in sys.modules); "
+            "print(mesh_massprops(p['stl'], 7.85).volume > 0)")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert done.stdout.split() == ["False", "True"]

@@ -7,8 +7,9 @@ Every case runs in a fresh Python subprocess, so the import of cadquery
 - geomgen N: build_web with N pointed blind holes (118 deg; "24f": flat) (one multi-tool cut,
   guarded clean), export_web (STEP with names, body STL re-read, repaired and
   checked by trimesh), exact_massprops;
-- floor: import cadquery, one extruded body with its pin bore, one cut of 24
-  plain cylinders, a STEP and a binary STL export, one GProp evaluation.
+- floor: tests/benchmarks/kernel_floor.py with one web: import cadquery, one
+  extruded body with its pin bore, one cut of 24 plain cylinders, a STEP and a
+  binary STL export, one GProp evaluation.
 Reported: wall time per case (best of --repeat), seconds per hole between
 the counts, and geomgen 24 / floor.  Nothing is asserted (speed targets are
 reported ratios, not limits).
@@ -17,12 +18,15 @@ reported ratios, not limits).
 from __future__ import annotations
 
 import argparse
-import json
-import subprocess
+import math
 import sys
-import time
+from pathlib import Path
 
 import pytest
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+import kernel_floor
+from kernel_floor import run_script
 
 GEOMGEN = r"""
 import json, math, sys, tempfile, time
@@ -32,7 +36,7 @@ from geomgen.section import parametric_web
 from geomgen.solid import build_web
 from geomgen.export import export_web
 from geomgen.verify import exact_massprops
-import cadquery, trimesh  # noqa: F401,E401  (imports timed apart from the work)
+import cadquery  # noqa: F401  (imports timed apart from the work; trimesh is not on this path)
 t1 = time.perf_counter()
 n = int(sys.argv[1])
 pts = [(x, y) for y in range(-58, -4, 6) for x in range(-57, 58, 6)
@@ -51,43 +55,15 @@ t4 = time.perf_counter()
 print(json.dumps({"import": t1 - t0, "build": t2 - t1, "export": t3 - t2, "props": t4 - t3}))
 """
 
-FLOOR = r"""
-import json, math, tempfile, time, os
-t0 = time.perf_counter()
-import cadquery as cq
-from OCP.BRepGProp import BRepGProp
-from OCP.GProp import GProp_GProps
-t1 = time.perf_counter()
-pts = [(x, y) for y in range(-58, -4, 6) for x in range(-57, 58, 6)
-       if 24 <= math.hypot(x, y) <= 58][:24]
-outer = cq.Wire.makeCircle(65.0, cq.Vector(0, 0, 0), cq.Vector(0, 0, 1))
-bore = cq.Wire.makeCircle(14.0, cq.Vector(0, 32, 0), cq.Vector(0, 0, 1))
-body = cq.Solid.extrudeLinear(outer, [bore], cq.Vector(0, 0, 18.0))
-tools = [cq.Solid.makeCylinder(2.0, 6.0, cq.Vector(x, y, 13.0)) for x, y in pts]
-web = body.cut(*tools)
-t2 = time.perf_counter()
-out = tempfile.mkdtemp()
-cq.exporters.export(web, os.path.join(out, "w.step"))
-web.exportStl(os.path.join(out, "w.stl"), tolerance=0.01, angularTolerance=0.1, ascii=False)
-t3 = time.perf_counter()
-props = GProp_GProps()
-BRepGProp.VolumeProperties_s(web.wrapped, props)
-props.MatrixOfInertia()
-t4 = time.perf_counter()
-print(json.dumps({"import": t1 - t0, "build": t2 - t1, "export": t3 - t2, "props": t4 - t3}))
-"""
-
-
-def run(code: str, *args: str) -> dict:
-    start = time.perf_counter()
-    proc = subprocess.run([sys.executable, "-c", code, *args], capture_output=True, text=True, check=True)
-    inner = json.loads(proc.stdout.strip().splitlines()[-1])
-    inner["wall"] = time.perf_counter() - start
-    return inner
+#: the floor's web: the same body as geomgen's, 24 flat-bottomed holes 4 mm x 5 mm (plain cylinders)
+FLOOR_PTS = [(x, y) for y in range(-58, -4, 6) for x in range(-57, 58, 6) if 24 <= math.hypot(x, y) <= 58][:24]
+FLOOR_SPEC = {"thickness": 18.0, "radius": 65.0, "pin_y": 32.0, "pin_radius": 14.0, "webs": ["w"],
+              "holes": [{"x": float(x), "y": float(y), "diameter": 4.0, "depth": 5.0, "point_angle": 180.0}
+                        for x, y in FLOOR_PTS]}
 
 
 def best(code: str, *args: str, repeat: int) -> dict:
-    runs = [run(code, *args) for _ in range(repeat)]
+    runs = [run_script(code, *args) for _ in range(repeat)]
     return min(runs, key=lambda r: r["wall"])
 
 
@@ -103,7 +79,7 @@ def main(argv=None) -> None:
         print(fmt.format(f"geomgen {n}", **results[n]))
     flat = best(GEOMGEN, "24", "flat", repeat=args.repeat)
     print(fmt.format("geomgen 24f", **flat) + "  flat-bottomed, like the floor's cylinders")
-    floor = best(FLOOR, repeat=args.repeat)
+    floor = min((kernel_floor.floor(FLOOR_SPEC) for _ in range(args.repeat)), key=lambda r: r["wall"])
     print(fmt.format("floor 24", **floor))
 
     def work(r):  # time after the imports

@@ -20,7 +20,7 @@ from timing import emit, interleaved_medians
 TARGET = 0.3
 REPEATS = 3
 
-# Invented demo engine (the design.md example numbers).
+# Invented demo engine (the numbers of the README's job-file example).
 JOB_TOML = """\
 name = "bench"
 

@@ -1,0 +1,71 @@
+"""The bare kernel floor the build and plan benchmarks measure geomgen against.
+
+A fresh Python process that imports cadquery and does by hand the kernel work
+geomgen does for a web: the body extruded with its pin bore, ONE multi-tool
+cut of the holes (a cylinder each, with a cone for a drill point), a STEP and
+a binary STL export for each named web, one GProp evaluation.  Nothing of
+geomgen is imported, so the ratio geomgen / floor is what geomgen adds.
+
+spec (JSON): {"thickness", "radius" (web), "pin_y", "pin_radius" (mm),
+"holes": [{"x", "y", "diameter", "depth", "point_angle"?, "through"?}],
+"webs": ["a", ...] (one STEP + STL each)}.
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+import time
+
+SCRIPT = r"""
+import json, math, os, sys, tempfile, time
+t0 = time.perf_counter()
+import cadquery as cq
+from OCP.BRepGProp import BRepGProp
+from OCP.GProp import GProp_GProps
+t1 = time.perf_counter()
+spec = json.loads(sys.argv[1])
+t, r_web, pin_y, r_pin = spec["thickness"], spec["radius"], spec["pin_y"], spec["pin_radius"]
+outer = cq.Wire.makeCircle(r_web, cq.Vector(0, 0, 0), cq.Vector(0, 0, 1))
+bore = cq.Wire.makeCircle(r_pin, cq.Vector(0, pin_y, 0), cq.Vector(0, 0, 1))
+body = cq.Solid.extrudeLinear(outer, [bore], cq.Vector(0, 0, t))
+tools = []
+for h in spec["holes"]:
+    r = 0.5 * h["diameter"]
+    if h.get("through"):
+        tools.append(cq.Solid.makeCylinder(r, t + 2.0, cq.Vector(h["x"], h["y"], -1.0)))
+        continue
+    z = t - h["depth"]
+    tools.append(cq.Solid.makeCylinder(r, h["depth"] + 1.0, cq.Vector(h["x"], h["y"], z)))
+    angle = h.get("point_angle", 118.0)
+    if angle < 180.0:
+        point = r / math.tan(math.radians(0.5 * angle))
+        tools.append(cq.Solid.makeCone(r, 0.0, point, cq.Vector(h["x"], h["y"], z), cq.Vector(0, 0, -1)))
+web = body.cut(*tools)
+t2 = time.perf_counter()
+out = tempfile.mkdtemp()
+for name in spec["webs"]:
+    cq.exporters.export(web, os.path.join(out, f"web-{name}.step"))
+    web.exportStl(os.path.join(out, f"web-{name}.stl"), tolerance=0.01, angularTolerance=0.1, ascii=False)
+t3 = time.perf_counter()
+props = GProp_GProps()
+BRepGProp.VolumeProperties_s(web.wrapped, props)
+props.MatrixOfInertia()
+t4 = time.perf_counter()
+print(json.dumps({"import": t1 - t0, "build": t2 - t1, "export": t3 - t2, "props": t4 - t3}))
+"""
+
+
+def run_script(code: str, *args: str) -> dict:
+    """Run `code` in a fresh interpreter; its last stdout line (JSON phase times) plus "wall", s."""
+    start = time.perf_counter()
+    proc = subprocess.run([sys.executable, "-c", code, *args], capture_output=True, text=True, check=True)
+    inner = json.loads(proc.stdout.strip().splitlines()[-1])
+    inner["wall"] = time.perf_counter() - start
+    return inner
+
+
+def floor(spec: dict) -> dict:
+    """Phase times and wall time (s) of the floor for `spec` (see the module notes)."""
+    return run_script(SCRIPT, json.dumps(spec))
