@@ -325,8 +325,6 @@ def _resolve_material(t: dict, where: str) -> Material:
 
 def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Path,
          plug_material: Material | None) -> WebSpec:
-    from .features import feature_from_table
-
     has_d, has_o = "diameter" in t, "outline" in t
     if has_d == has_o:
         raise BadInput(f"{where}: give exactly one of 'diameter' (a full-circle web) or 'outline' (a DXF file)")
@@ -355,9 +353,15 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
     raw = t.get("features", [])
     if not isinstance(raw, list):
         raise BadInput(f"{where}.features: must be a list of feature tables")
-    features = tuple(feature_from_table(f, where=f"{where}.features[{i}]", thickness=thickness,
-                                        plug_material=plug_material)
-                     for i, f in enumerate(raw))
+    features: tuple = ()
+    if raw:
+        # the feature kinds (and shapely under them) load only for a web that has features: `study` of a
+        # plain web stays light
+        from .kinds import feature_from_table
+
+        features = tuple(feature_from_table(f, where=f"{where}.features[{i}]", thickness=thickness,
+                                            plug_material=plug_material)
+                         for i, f in enumerate(raw))
     web_material = _resolve_material(t, where)
     fit, pin_inner, pin_material = _press_fit(t, where, pin_bore, web_material)
     return WebSpec(name=name, thickness=thickness, material=web_material, pin_bore=pin_bore,
