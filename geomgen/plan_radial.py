@@ -17,6 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 import shapely
 
+from .errors import BadInput
 from .kinds import Radial
 from .massprops import MassProps
 
@@ -57,22 +58,24 @@ def _hole(angle: float, diameter: float, depth: float, z: float, section, point_
                   point_angle=point_angle).on(section)
 
 
-def _fits(hole: Radial, forbidden) -> bool:
+def _fits(angle, diameter, depth, z, section, point_angle, forbidden) -> bool:
+    """The hole at this depth reaches full diameter inside the rim and keeps its walls."""
     try:
-        return not hole.footprint_polygon(0.01).intersects(forbidden)
-    except Exception:  # noqa: BLE001  a depth the rim cannot take (e.g. not full diameter yet)
+        hole = _hole(angle, diameter, depth, z, section, point_angle)
+    except BadInput:  # a depth the rim cannot take (not full diameter yet, or no rim on that line)
         return False
+    return not hole.footprint_polygon(0.01).intersects(forbidden)
 
 
 def _deepest(angle, diameter, z, section, forbidden, point_angle, lo, hi) -> float | None:
     """The deepest depth in [lo, hi] at which the hole keeps its walls (None if even `lo` does not)."""
-    if not _fits(_hole(angle, diameter, lo, z, section, point_angle), forbidden):
+    if not _fits(angle, diameter, lo, z, section, point_angle, forbidden):
         return None
-    if _fits(_hole(angle, diameter, hi, z, section, point_angle), forbidden):
+    if _fits(angle, diameter, hi, z, section, point_angle, forbidden):
         return hi
     while hi - lo > DEPTH_TOL:
         mid = 0.5 * (lo + hi)
-        if _fits(_hole(angle, diameter, mid, z, section, point_angle), forbidden):
+        if _fits(angle, diameter, mid, z, section, point_angle, forbidden):
             lo = mid
         else:
             hi = mid

@@ -421,7 +421,7 @@ def test_through_hole_depth_is_the_web_thickness(tmp_path):
 # ------------------------------------------------------------------ [correction] and [output]
 
 def test_correction_kind(tmp_path):
-    bad(tmp_path, {"correction.kind": "grind"}, "correction.kind", "holes, pockets, plugs, auto", "'grind'")
+    bad(tmp_path, {"correction.kind": "grind"}, "correction.kind", "holes, pockets, plugs, radial, auto", "'grind'")
 
 
 def test_correction_kinds_allowed(tmp_path):
