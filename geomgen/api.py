@@ -173,13 +173,17 @@ class Plan:
         Raises VerificationFailed if a solid and its prediction are apart, BadInput if a feature
         breaks a wall the solid checks.
         """
+        from . import sidecar
         from .pipeline import render_files, solid_files
         from .plan_json import jsonable
 
         works = self._works
-        verified, files = solid_files(self.job, works)
-        figures, rendered = render_files(self.job, self.command, works, verified, study_result=self._study_dict,
-                                         trim=self._trim_dict, with_shop=self.command != "build")
+        # trimesh and matplotlib are imported in a second process while this one builds the solids
+        with sidecar.started():
+            verified, files = solid_files(self.job, works)
+            figures, rendered = render_files(self.job, self.command, works, verified,
+                                             study_result=self._study_dict, trim=self._trim_dict,
+                                             with_shop=self.command != "build")
         document = jsonable(figures)
         files.update(rendered)
         webs = tuple(VerifiedWeb(name=w.name, predicted=w.predicted, exact=v["exact_massprops"],

@@ -24,8 +24,11 @@ from .massprops import MassProps
 #: the most holes tried in one layout, and how far either side of the line they may spread, deg
 MAX_HOLES = 9
 MAX_SPREAD_DEG = 80.0
-#: depth search resolution, mm
-DEPTH_TOL = 1e-4
+#: depth search resolution, mm (a tenth of the usual depth step; the depth is then put on the step grid)
+DEPTH_TOL = 0.005
+#: the largest drill sizes tried (a radial hole wants the biggest drill the faces allow; smaller ones only
+#: lose reach and add holes)
+DRILLS_TRIED = 3
 
 
 @dataclass(frozen=True)
@@ -93,12 +96,20 @@ def plan_radial(*, section, existing, need_vec, tolerance: float, limits, keep_o
     largest reach found, g*mm.  axis : deg from +Y, the direction of the material to remove."""
     t, rho = section.thickness, section.density_g_cm3
     z = 0.5 * t
-    drills = [d for d in sorted(limits.drills, reverse=True) if d <= t - 2 * limits.min_wall + 1e-9]
+    drills = [d for d in sorted(limits.drills, reverse=True) if d <= t - 2 * limits.min_wall + 1e-9][:DRILLS_TRIED]
     u = np.asarray(need_vec, dtype=float) / float(np.linalg.norm(need_vec))
     need = float(np.linalg.norm(need_vec))
     forbidden = _forbidden(section=section, existing=existing, limits=limits, keep_out=keep_out)
     rim = section.rim_radius_min
     reach = 0.0
+    deepest: dict[tuple[float, float], float | None] = {}
+
+    def deepest_at(angle, d, lo, hi):
+        key = (d, round(angle, 6))
+        if key not in deepest:
+            deepest[key] = _deepest(angle, d, z, section, forbidden, limits.point_angle, lo, hi)
+        return deepest[key]
+
     for d in drills:
         # full diameter inside the rim, plus a step: the least depth a radial hole is planned at
         sag = rim - math.sqrt(max(rim * rim - 0.25 * d * d, 0.0))
@@ -107,7 +118,7 @@ def plan_radial(*, section, existing, need_vec, tolerance: float, limits, keep_o
         if hi <= lo:
             continue
         for count in range(1, MAX_HOLES + 1):
-            deepest_one = _deepest(axis, d, z, section, forbidden, limits.point_angle, lo, hi)
+            deepest_one = deepest_at(axis, d, lo, hi)
             if deepest_one is None and count == 1:
                 break
             # neighbours keep min_wall at the tips of holes as deep as one alone could go
@@ -116,8 +127,7 @@ def plan_radial(*, section, existing, need_vec, tolerance: float, limits, keep_o
             angles = _angles(axis, count, pitch)
             if count > 1 and max(abs(a - axis) for a in angles) > MAX_SPREAD_DEG:
                 break
-            depth_max = min((_deepest(a, d, z, section, forbidden, limits.point_angle, lo, hi) or 0.0)
-                            for a in angles)
+            depth_max = min((deepest_at(a, d, lo, hi) or 0.0) for a in angles)
             if depth_max < lo:
                 continue
 

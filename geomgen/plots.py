@@ -89,6 +89,12 @@ def study_figure(result: dict):
     return fig
 
 
+def warm_up() -> None:
+    """Import what drawing the study figure needs (the sidecar does this while a plan builds its solids)."""
+    import matplotlib.backends.backend_svg  # noqa: F401
+    from matplotlib.figure import Figure  # noqa: F401
+
+
 def study_svg(result: dict) -> bytes:
     """The study figure as SVG bytes; the same result gives the same bytes."""
     import matplotlib

@@ -317,7 +317,15 @@ def summary_lines(result: dict) -> list[str]:
 
 def render(result: dict) -> dict[str, bytes]:
     """The study's files: {"study.json": bytes, "study.svg": bytes}."""
-    from .plots import study_svg  # matplotlib only when a picture is wanted
+    from . import sidecar
 
     text = json.dumps(result, indent=2, sort_keys=True, allow_nan=False) + "\n"
-    return {"study.json": text.encode("utf-8"), "study.svg": study_svg(result)}
+    side = sidecar.active()
+    answer = side.ask({"op": "svg", "study": result}) if side is not None else None
+    if answer is not None:
+        svg = answer["svg"].encode("utf-8")
+    else:
+        from .plots import study_svg  # matplotlib only when a picture is wanted
+
+        svg = study_svg(result)
+    return {"study.json": text.encode("utf-8"), "study.svg": svg}

@@ -140,20 +140,35 @@ def mesh_massprops(stl_path, density_g_cm3: float) -> MassProps:
     return _mesh_props(_load_volume(stl_path), density_g_cm3)
 
 
-def mesh_web_massprops(web, paths: dict) -> MassProps:
-    """The web from its exported meshes: the body STL at the web density, and
-    each connected piece of the plugs STL at the density of the plug whose
-    axis it surrounds."""
-    total = mesh_massprops(paths["stl"], web.density_g_cm3)
-    if web.plugs:
-        pieces = _load_volume(paths["plugs_stl"]).split(only_watertight=True)
-        if len(pieces) != len(web.plugs):
-            raise VerificationFailed(f"{paths['plugs_stl']}: {len(pieces)} closed pieces for {len(web.plugs)} plugs")
-        axes = np.array([[web.features[p.index].x, web.features[p.index].y] for p in web.plugs])
+def mesh_web_from_files(stl, density_g_cm3: float, plugs_stl=None, plugs=()) -> MassProps:
+    """A web from its STL files, by trimesh: the body at `density_g_cm3`, and each connected closed piece
+    of `plugs_stl` at the density of the plug (x, y, density) whose axis it surrounds."""
+    total = mesh_massprops(stl, density_g_cm3)
+    if plugs:
+        pieces = _load_volume(plugs_stl).split(only_watertight=True)
+        if len(pieces) != len(plugs):
+            raise VerificationFailed(f"{plugs_stl}: {len(pieces)} closed pieces for {len(plugs)} plugs")
+        axes = np.array([[x, y] for x, y, _ in plugs])
         for piece in pieces:
             k = int(np.argmin(np.linalg.norm(axes - piece.center_mass[:2], axis=1)))
-            total = total + _mesh_props(piece, web.plugs[k].density_g_cm3)
+            total = total + _mesh_props(piece, plugs[k][2])
     return total
+
+
+def mesh_web_massprops(web, paths: dict) -> MassProps:
+    """The web from its exported meshes, re-read by trimesh (in the sidecar process when one is running,
+    geomgen.sidecar, else here): the body STL at the web density, each plug at its own."""
+    from . import sidecar
+
+    plugs = [(web.features[p.index].x, web.features[p.index].y, p.density_g_cm3) for p in web.plugs]
+    args = (str(paths["stl"]), float(web.density_g_cm3), str(paths["plugs_stl"]) if plugs else None, plugs)
+    side = sidecar.active()
+    if side is not None:
+        answer = side.ask({"op": "mesh", "stl": args[0], "density": args[1], "plugs_stl": args[2],
+                           "plugs": [list(p) for p in plugs]})
+        if answer is not None:
+            return sidecar.massprops_from_json(answer)
+    return mesh_web_from_files(*args)
 
 
 def _curved_faces(shape):

@@ -1,0 +1,112 @@
+"""A second Python process for the slow imports of a plan: trimesh (the mesh check) and matplotlib (the
+study figure).
+
+A plan spends most of its time in the CAD kernel on one core.  Importing trimesh (scipy under it) and
+matplotlib costs about as much again, so `Plan.verify` starts this helper first: it imports them on the
+other core while the kernel works, then integrates the written STL files and draws study.svg when asked.
+The helper runs the very same functions the plan would run itself (`verify.mesh_web_from_files`,
+`plots.study_svg`), and numbers cross the pipe as JSON, whose floats round-trip exactly, so the files are
+byte for byte what an in-process run writes.  If the helper cannot start, or fails, or gives a wrong
+answer shape, the work is done in-process instead: the sidecar is a speed-up, never a dependency.
+
+Protocol: one JSON object per line each way.  {"op": "mesh", ...} -> {"ok": true, "mass": ..., ...};
+{"op": "svg", "study": {...}} -> {"ok": true, "svg": "..."}; EOF ends the helper.
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from contextlib import contextmanager
+
+import numpy as np
+
+from .massprops import MassProps
+
+_ACTIVE: Sidecar | None = None
+
+
+class Sidecar:
+    """The helper process, started at once; its imports run while the caller works."""
+
+    def __init__(self) -> None:
+        self.proc = subprocess.Popen([sys.executable, "-m", "geomgen.sidecar"], stdin=subprocess.PIPE,
+                                     stdout=subprocess.PIPE, stderr=subprocess.DEVNULL, text=True, bufsize=1)
+
+    def ask(self, request: dict) -> dict | None:
+        """The helper's answer, or None if it is gone or failed (the caller then does the work itself)."""
+        try:
+            self.proc.stdin.write(json.dumps(request) + "\n")
+            self.proc.stdin.flush()
+            line = self.proc.stdout.readline()
+            answer = json.loads(line) if line else None
+        except (OSError, ValueError):
+            return None
+        return answer if isinstance(answer, dict) and answer.get("ok") else None
+
+    def close(self) -> None:
+        try:
+            self.proc.stdin.close()
+            self.proc.wait(timeout=10)
+        except (OSError, subprocess.TimeoutExpired):
+            self.proc.kill()
+
+
+@contextmanager
+def started():
+    """Run the block with a helper process at hand (or without one, if it cannot be started)."""
+    global _ACTIVE
+    try:
+        side = Sidecar()
+    except OSError:
+        side = None
+    _ACTIVE = side
+    try:
+        yield side
+    finally:
+        _ACTIVE = None
+        if side is not None:
+            side.close()
+
+
+def active() -> Sidecar | None:
+    return _ACTIVE
+
+
+def massprops_to_json(p: MassProps) -> dict:
+    return {"mass": p.mass, "first": [float(v) for v in p.first_moment],
+            "second": [float(v) for v in np.asarray(p.second_moment).ravel()], "volume": p.volume}
+
+
+def massprops_from_json(d: dict) -> MassProps:
+    return MassProps(float(d["mass"]), np.array(d["first"], dtype=float),
+                     np.array(d["second"], dtype=float).reshape(3, 3), float(d["volume"]))
+
+
+def _serve() -> None:
+    """The helper's side: warm the imports, then answer each request line."""
+    import trimesh  # noqa: F401  (the point: imported while the caller works)
+
+    from . import plots, verify
+
+    plots.warm_up()
+    for line in sys.stdin:
+        try:
+            request = json.loads(line)
+            if request["op"] == "mesh":
+                props = verify.mesh_web_from_files(request["stl"], request["density"], request.get("plugs_stl"),
+                                                   [tuple(p) for p in request.get("plugs", [])])
+                answer = {"ok": True, **massprops_to_json(props)}
+            elif request["op"] == "svg":
+                answer = {"ok": True, "svg": plots.study_svg(request["study"]).decode("utf-8")}
+            else:
+                answer = {"ok": False}
+        except Exception as exc:  # noqa: BLE001  any failure: the caller does the work itself
+            answer = {"ok": False, "error": f"{type(exc).__name__}: {exc}"}
+        sys.stdout.write(json.dumps(answer) + "\n")
+        sys.stdout.flush()
+
+
+if __name__ == "__main__":
+    _serve()

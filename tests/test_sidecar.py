@@ -1,0 +1,41 @@
+"""The sidecar process (trimesh and matplotlib imported on the other core while the kernel works) is a
+speed-up only: a plan verified with it writes the very bytes a plan verified in-process writes, and a
+helper that fails or cannot start leaves the work to the caller."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+import geomgen
+from geomgen import sidecar
+
+SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+
+
+@pytest.mark.cad
+def test_with_and_without_the_sidecar_the_files_are_the_same(monkeypatch):
+    job = geomgen.load_job(SAMPLES / "plugs-stroker.toml")      # plugs: the mesh check splits the plug pieces
+    helped = geomgen.plan(job).verify()
+
+    def refuse():
+        raise OSError("no second process here")
+
+    monkeypatch.setattr(sidecar, "Sidecar", refuse)
+    alone = geomgen.plan(job).verify()
+    for name in ("plan.json", "study.svg", "report.html", "operations.csv", "drawing.dxf"):
+        assert helped.files[name] == alone.files[name], name
+    # the mesh road (trimesh on the written STL, in the helper) agrees with the exact solid within its stated
+    # bound, and reads the mesh a little light as any inscribed mesh does
+    for web in helped.webs:
+        assert web.agreement["mesh_vs_exact"]["mass_g"] <= web.agreement["mesh_bound"]["mass_g"]
+        assert web.mesh.mass_g < web.exact.mass
+
+
+def test_a_failing_helper_answers_none():
+    with sidecar.started() as side:
+        assert side is not None
+        assert side.ask({"op": "mesh", "stl": "/nonexistent.stl", "density": 7.85}) is None
+        assert side.ask({"op": "no such thing"}) is None
+    assert sidecar.active() is None
