@@ -198,7 +198,8 @@ def _couple(doc: dict) -> str:
         rows.append(["split of the target that leaves no couple",
                      ", ".join(f"{_e(k)} {_n(v, 3)}" for k, v in c["couple_free_shares"].items())])
     return (_table(["couple (moment unbalance)", "value"], rows)
-            + f'<p class="note">{_e(c["couple_note"])}. {_e(c["plane_unbalance_note"])}. Identical webs do not '
+            + f'<p class="note">The couple is taken {_e(c["couple_note"])}; it is shown as '
+              f'{_e(c["plane_unbalance_note"].removeprefix("the couple as "))}. Identical webs do not '
               "cancel a couple when their features lie off the Y axis or on one face only: turned 180° about Y, "
               "web b's x–z product keeps its sign.</p>")
 
