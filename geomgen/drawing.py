@@ -243,7 +243,43 @@ def _draw_web(msp, doc, w, entry: dict, tables: dict, *, offset) -> float:
     for line in lines:
         _text(msp, line, (x0, y), layer=lay["TABLE"])
         y -= ROW_H
-    return _draw_tables(msp, tables, x0=x0, y=y - 1.0, layer=lay["TABLE"])
+    low = _draw_tables(msp, tables, x0=x0, y=y - 1.0, layer=lay["TABLE"])
+    return _draw_rim_view(msp, w, x0=x0, y=low - 8.0, lay=lay)
+
+
+def _draw_rim_view(msp, w, *, x0: float, y: float, lay: dict) -> float:
+    """The rim unrolled, for features drilled in from the rim (radial holes): a strip as long as the arc
+    they span (mm along the rim) and as high as the web, inner face at the bottom, each hole where the
+    drill meets the rim, with its number, its axis angle and its height z.  Returns the lowest y used."""
+    marks = [(i, f) for i, f in enumerate(w.all_features, start=1) if f.opens_rim]
+    if not marks:
+        return y
+    t = w.section.thickness
+    radius = max(f.entry for _, f in marks)
+    angles = [f.angle for _, f in marks]
+    lo, hi = min(angles) - 12.0, max(angles) + 12.0
+    width = math.radians(hi - lo) * radius
+
+    def at(angle: float) -> float:
+        # seen from outside the rim with the outer face up, counter-clockwise angles run to the left
+        return x0 + math.radians(hi - angle) * radius
+
+    top = y - 11.0
+    _text(msp, f"rim unrolled at r {radius:.2f} mm, seen from outside: inner face at the bottom, outer face "
+               f"at the top; angles from +Y, counter-clockwise (to the left)", (x0, y), layer=lay["TABLE"])
+    bottom = top - t
+    box = [(x0, bottom), (x0 + width, bottom), (x0 + width, top), (x0, top)]
+    msp.add_lwpolyline(box, close=True, dxfattribs={"layer": lay["OUTLINE"]})
+    for i, f in marks:
+        cx, cz = at(f.angle), bottom + f.z
+        msp.add_circle((cx, cz), 0.5 * f.diameter, dxfattribs={"layer": lay["FEATURES"]})
+        msp.add_line((cx, bottom - 2.0), (cx, top + 2.0), dxfattribs={"layer": lay["AXES"], "linetype": "CENTER"})
+        _text(msp, str(i), (cx, top + 4.5), layer=lay["FEATURES"], height=3.0, align="MIDDLE_CENTER")
+        _text(msp, f"{f.angle:.1f}\u00b0", (cx, bottom - 4.5), layer=lay["TABLE"], align="MIDDLE_CENTER")
+    first = marks[0][1]
+    msp.add_linear_dim(base=(x0 - 6.0, bottom), p1=(x0, bottom), p2=(at(first.angle), bottom + first.z), angle=90,
+                       dimstyle=DIM_STYLE, dxfattribs={"layer": lay["DIMS"]}).render()
+    return bottom - 8.0
 
 
 def _write(dxf) -> bytes:

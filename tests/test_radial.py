@@ -176,3 +176,13 @@ def test_radial_plan_builds_and_the_step_agrees(tmp_path):
         assert all(f["kind"] == "radial" for f in w["planned_features"])
     sheet = (tmp_path / "out" / "operations.csv").read_text()
     assert "radial" in sheet and "entry_radius_mm" in sheet.splitlines()[0]
+    # the drawing unrolls each web's rim and shows every radial hole on it, one circle of its diameter each
+    import ezdxf
+
+    msp = ezdxf.readfile(tmp_path / "out" / "drawing.dxf").modelspace()
+    texts = [e.dxf.text for e in msp.query("TEXT")]
+    assert sum(t.startswith("rim unrolled") for t in texts) == 2
+    n_radial = sum(len(w["planned_features"]) for w in doc["webs"])
+    d = doc["webs"][0]["planned_features"][0]["diameter"]
+    rim_circles = [c for c in msp.query("CIRCLE") if abs(c.dxf.radius - d / 2) < 1e-9]
+    assert len(rim_circles) == n_radial
