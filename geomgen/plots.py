@@ -106,11 +106,3 @@ def study_svg(result: dict) -> bytes:
     with matplotlib.rc_context({"svg.hashsalt": "geomgen-study", "svg.fonttype": "none"}):
         fig.savefig(buf, format="svg", metadata={"Date": None})
     return buf.getvalue()
-
-
-def study_png(result: dict, *, dpi: int = 100) -> bytes:
-    """The study figure as PNG bytes (for reports and for looking at)."""
-    fig = study_figure(result)
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png", dpi=dpi, metadata={"Software": None})
-    return buf.getvalue()
