@@ -138,6 +138,157 @@ def _total(features, *, thickness, web_density, plug_density=None) -> MassProps:
                MassProps.zero())
 
 
+@dataclass
+class _Row:
+    """Feature centres on a circle, symmetric about the line at `axis` deg."""
+
+    diameter: float
+    radius: float
+    angles: list              # relative to the axis, deg, in groups: [0] or [+a, -a]
+    groups: list              # list of lists of relative angles
+
+    def lever(self, count_groups: int) -> float:
+        return sum(self.radius * math.cos(math.radians(a)) for g in self.groups[:count_groups] for a in g)
+
+
+class Clearance:
+    """How far a point may be from the nearest thing a feature must keep off, mm.
+
+    Positive inside the allowed region: the distance to the nearest limit
+    (rim less `min_wall`, crankpin bore plus `pin_wall`, other bores and
+    existing features plus `min_wall`, keep-out zones).  Circles are measured
+    exactly; other outlines through shapely on finely flattened rings (their
+    chord error, at most `CHORD`, is taken off to stay on the safe side).
+    """
+
+    CHORD = 0.05  # mm: coarse enough to be quick, and taken off every clearance
+
+    def __init__(self, *, section, existing, limits: Limits, keep_out=()):
+        self.terms = []
+        outer = section.outer
+        circ = outer.as_circle()
+        if circ:
+            self.terms.append(("in_circle", circ[:2], circ[2] - limits.min_wall))
+        else:
+            poly = outer.oriented(True).polygon(self.CHORD)
+            self.terms.append(("in_poly", poly, limits.min_wall + self.CHORD))
+        px, py = section.pin_center
+        for bore in section.bores:
+            c = bore.as_circle()
+            is_pin = c is not None and math.hypot(c[0] - px, c[1] - py) < 1e-6
+            margin = max(limits.pin_wall, limits.min_wall) if is_pin else limits.min_wall
+            self._add_out(bore, margin)
+        for feat in existing:
+            from .features import footprint
+            self._add_out(footprint(feat), limits.min_wall)
+        for zone in keep_out:
+            if zone.points is not None:
+                self.terms.append(("out_poly", shapely.Polygon(zone.points), 0.0))
+            else:
+                self.terms.append(("out_circle", zone.center, 0.5 * zone.diameter))
+        for kind, geom, _ in self.terms:
+            if kind.endswith("poly"):
+                shapely.prepare(geom)
+
+    def _add_out(self, loop, margin):
+        c = loop.as_circle()
+        if c:
+            self.terms.append(("out_circle", c[:2], c[2] + margin))
+        else:
+            self.terms.append(("out_poly", loop.oriented(True).polygon(self.CHORD), margin + self.CHORD))
+
+    def __call__(self, xs, ys) -> np.ndarray:
+        xs, ys = np.asarray(xs, dtype=float), np.asarray(ys, dtype=float)
+        out = np.full(xs.shape, np.inf)
+        for kind, geom, value in self.terms:
+            if kind == "in_circle":
+                c = value - np.hypot(xs - geom[0], ys - geom[1])
+            elif kind == "out_circle":
+                c = np.hypot(xs - geom[0], ys - geom[1]) - value
+            else:
+                inside = shapely.contains_xy(geom, xs, ys)
+                # only points still in the running need a distance: the rest are out already
+                wanted = (inside if kind == "in_poly" else ~inside) & (out > 0)
+                c = np.full(xs.shape, -1.0)
+                if wanted.any():
+                    dist = shapely.distance(geom.exterior, shapely.points(xs[wanted], ys[wanted]))
+                    c[wanted] = dist - value
+            out = np.minimum(out, c)
+        return out
+
+    def r_max(self) -> float:
+        kind, geom, value = self.terms[0]
+        if kind == "in_circle":
+            return math.hypot(*geom) + value
+        b = geom.bounds
+        return max(math.hypot(x, y) for x in (b[0], b[2]) for y in (b[1], b[3]))
+
+
+class _Sampler:
+    """Clearance on rings about the crank axis, either side of the line at `axis_deg`."""
+
+    def __init__(self, clearance: Clearance, axis_deg: float):
+        self.axis = axis_deg
+        self.r_max = clearance.r_max()
+        self.rel = np.arange(0.0, 180.0 + 1e-9, ANGLE_STEP)
+        self.radii = np.arange(self.r_max, 1.0, -RADIUS_STEP) if self.r_max > 1 else np.array([])
+        self._rows = {}
+        if len(self.radii):
+            rr, aa = np.meshgrid(self.radii, self.rel, indexing="ij")
+            self.clear_pos = self._clearance(clearance, rr, self.axis + aa)
+            self.clear_neg = self._clearance(clearance, rr, self.axis - aa)
+            both = np.minimum(self.clear_pos, self.clear_neg)
+            alive = np.nonzero(both.max(axis=1) > 0)[0]
+            self.radii = self.radii[alive]
+            self.clear_both = both[alive]
+
+    @staticmethod
+    def _clearance(clearance, rr, abs_deg):
+        a = np.radians(abs_deg)
+        return clearance(-rr * np.sin(a), rr * np.cos(a))
+
+    def rows(self, diameter: float, wall: float, odd: bool, *, max_angle: float = 180.0) -> list:
+        key = (diameter, wall, odd, max_angle)
+        if key not in self._rows:
+            self._rows[key] = list(self._make_rows(diameter, wall, odd, max_angle))
+        return self._rows[key]
+
+    def _make_rows(self, diameter, wall, odd, max_angle):
+        """For each radius, the most effective row of up to MAX_PATTERN centres,
+        none further than `max_angle` deg from the line."""
+        need = 0.5 * diameter + 1e-6
+        for i, radius in enumerate(self.radii):
+            chord = diameter + wall
+            if chord >= 2 * radius:
+                continue
+            spacing = math.degrees(2 * math.asin(chord / (2 * radius)))
+            ok = self.clear_both[i] >= need
+            if not ok.any():
+                continue
+            free = self.rel[ok]
+            groups = []
+            if odd:
+                if not ok[0]:
+                    continue
+                groups.append([0.0])
+                last = 0.0
+            else:
+                last = -0.5 * spacing
+            count = 1 if odd else 0
+            while count + 2 <= MAX_PATTERN:
+                j = np.searchsorted(free, last + spacing - 1e-9)
+                if j >= len(free):
+                    break
+                a = float(free[j])
+                if a > max_angle - 0.5 * spacing + 1e-9:
+                    break
+                groups.append([a, -a])
+                last, count = a, count + 2
+            if groups:
+                yield _Row(diameter, float(radius), [x for g in groups for x in g], groups)
+
+
+# ------------------------------------------------------------------ holes and plugs
 def _row_features(row: _Row, axis: float, *, kind: str, depth: float, through_groups: int, thickness: float,
                   limits: Limits, count_groups: int, plug_material=None):
     feats = []
