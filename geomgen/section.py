@@ -216,10 +216,11 @@ def _across(loop: Loop) -> float:
 def _unit_fix(outline, size_mm: float, lo: float, hi: float, *, override: str) -> str:
     """What to set so that a size read as `size_mm` lies in (lo, hi]: the override, with the units that fit."""
     fits = outline.units_that_fit(size_mm, lo, hi)
+    spoken = {"mm": "millimetres", "in": "inches", "cm": "centimetres", "m": "metres"}
     if override == "--units":
-        return (f"if it is drawn in {fits[0]}, give --units {fits[0]}" if fits
+        return (f"if it is drawn in {spoken[fits[0]]}, give --units {fits[0]}" if fits
                 else "check the drawing's unit and give --units mm, in, cm or m")
-    return (f'if it is drawn in {fits[0]}, set {override} = "{fits[0]}" for this web' if fits
+    return (f'if it is drawn in {spoken[fits[0]]}, set {override} = "{fits[0]}" for this web' if fits
             else f'check the drawing\'s unit and set {override} = "mm", "in", "cm" or "m" for this web')
 
 
