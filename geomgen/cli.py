@@ -17,7 +17,7 @@ from pathlib import Path
 
 from . import __version__, api
 from .errors import BadInput, GeomgenError, warn_all
-from .output import check_target
+from .output import Terminated, check_target, staged, write_files
 
 
 class _Parser(argparse.ArgumentParser):
@@ -125,8 +125,12 @@ def _load(args):
 
 def _finish(args, plan) -> int:
     """Solids, checks and files of a build, plan or trim; then the new warnings and the summary."""
-    verified = plan.verify()
-    written = verified.write(args.out, force=args.force)
+    # the staging folder is open while the solids are built (the long part), so that SIGTERM or a
+    # failure there removes it as it would during the writing itself
+    with staged(args.out, force=args.force) as stage:
+        verified = plan.verify()
+        write_files(stage, dict(verified.files))
+    written = sorted(verified.files)
     warn_all(line for line in verified.warnings if line not in plan.job.warnings)
     for line in verified.summary_lines():
         print(line)
@@ -149,6 +153,9 @@ def main(argv=None) -> int:
     except KeyboardInterrupt:
         print("geomgen: interrupted; nothing was written", file=sys.stderr)
         return 130
+    except Terminated:
+        print("geomgen: terminated (SIGTERM); nothing was written", file=sys.stderr)
+        return 128 + 15
 
 
 __all__ = ["main", "build_parser", "BadInput"]
