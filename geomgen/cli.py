@@ -68,6 +68,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--against-rotation", action="store_true",
                    help="the --angle reading was taken against the direction of rotation")
     p.add_argument("--web", metavar="NAME", help="take it all off this web (default: shared between both)")
+    p.add_argument("--accept-other-plan", action="store_true",
+                   help="trim from a --from plan made for a job that differs from JOB (named in a warning)")
     _add_out(p)
     return parser
 
@@ -112,7 +114,8 @@ def _cmd_trim(args) -> int:
         raise BadInput("--out: must differ from --from (the earlier plan is kept as it is)")
     job = _load(args)
     plan = api.trim(job, previous=args.from_dir, unbalance=args.unbalance, angle=args.angle,
-                    against_rotation=args.against_rotation, web=args.web)
+                    against_rotation=args.against_rotation, web=args.web,
+                    accept_other_plan=args.accept_other_plan)
     return _finish(args, plan)
 
 
