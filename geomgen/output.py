@@ -59,7 +59,12 @@ def _process_alive(pid: int) -> bool:
         return False
     except (PermissionError, OSError):
         return True
-    return True
+    # a killed process not yet reaped by its parent (a zombie) still answers kill(pid, 0)
+    try:
+        stat = Path(f"/proc/{pid}/stat").read_text()
+    except OSError:
+        return True  # no /proc (not Linux) or it went meanwhile: count it as alive, the safe side
+    return stat[stat.rfind(")") + 1:].split()[:1] not in (["Z"], ["X"])
 
 
 def remove_stale_stages(out_dir) -> list[Path]:

@@ -114,3 +114,31 @@ def test_sigterm_inside_staged_removes_the_folder_and_restores_the_handler(tmp_p
         time.sleep(1)  # the handler runs at the next bytecode; never reached in practice
     assert list(tmp_path.iterdir()) == []
     assert signal.getsignal(signal.SIGTERM) is before
+
+
+@pytest.mark.cad  # the subprocess builds solids
+def test_sigkill_during_plan_is_cleaned_by_the_next_run(tmp_path):
+    job = write_job(tmp_path)
+    out = tmp_path / "out"
+    proc = subprocess.Popen([sys.executable, "-m", "geomgen", "plan", str(job), "--out", str(out)],
+                            stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=_env(), cwd=ROOT)
+    try:
+        seen = []
+        while proc.poll() is None and not seen:
+            seen = stages(tmp_path, "out")
+            time.sleep(0.005)
+        assert seen, "the run ended before its staging folder was seen"
+        proc.send_signal(signal.SIGKILL)
+        time.sleep(0.5)
+        assert stages(tmp_path, "out") == seen  # SIGKILL cannot be caught: the folder stays
+        # not reaped yet (a zombie, kill(pid, 0) still succeeds): it must count as gone all the same
+        done = subprocess.run([sys.executable, "-m", "geomgen", "study", str(job), "--out", str(out)],
+                              capture_output=True, text=True, env=_env(), cwd=ROOT, timeout=300)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+        proc.wait()
+    assert done.returncode == 0, done.stderr
+    assert done.stderr.splitlines() == [
+        f"geomgen: removed a staging folder left by an earlier run that was killed: {seen[0]}"]
+    assert stages(tmp_path, "out") == []
