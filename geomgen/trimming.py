@@ -117,6 +117,19 @@ def _fig(x) -> float:
     return fine(float(x))
 
 
+def _canon(value):
+    """`value` as plan.json holds it: floats at 9 significant digits, tuples as lists, numpy made plain."""
+    if isinstance(value, dict):
+        return {str(k): _canon(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_canon(v) for v in value]
+    if isinstance(value, (float, np.floating)):
+        return _fig(value)
+    if isinstance(value, np.integer):
+        return int(value)
+    return value
+
+
 def _file_sha256(path) -> str | None:
     try:
         return hashlib.sha256(path.read_bytes()).hexdigest()
@@ -139,8 +152,7 @@ def _canonical(job) -> dict:
                      "outline_units": w.outline_units,
                      "thickness": _fig(w.thickness), "material": w.material.name, "density": _fig(w.density),
                      "pin_bore": _fig(w.pin_bore), "main_bore": _fig(w.main_bore),
-                     "features": [{k: (_fig(v) if isinstance(v, float) else v) for k, v in f.to_table().items()}
-                                  for f in w.features]})
+                     "features": [_canon(f.to_table()) for f in w.features]})
     return {"engine": {"stroke": _fig(e.stroke), "rod_length": _fig(e.rod_length),
                        "balance_factor": _fig(e.balance_factor),
                        "reciprocating": {k: _fig(v) for k, v in sorted(e.reciprocating.items())},

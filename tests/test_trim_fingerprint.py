@@ -137,3 +137,25 @@ def test_a_changed_outline_file_is_named(tmp_path, capsys):
     draw(64.0)  # the same file name, another web
     line = one_error(capsys, ["trim", job, "--from", folder, *TRIM, "--out", tmp_path / "trim"])
     assert "web a.outline (file contents): " in line and "--accept-other-plan" in line
+
+
+def test_every_feature_kind_reads_back_as_the_same_fingerprint(tmp_path):
+    # a plan.json written and read back (9-digit figures, lists for tuples) must still match its job;
+    # the hole's y in inches is 1/3 in, -8.46666... mm, a figure with more digits than plan.json keeps
+    features = [{"kind": "hole", "x": 0.0, "y": "-0.333333333333 in", "diameter": 10.0, "depth": 8.0},
+                {"kind": "pocket", "r_inner": 40.0, "r_outer": 55.0, "angle_start": 150.0, "angle_end": 210.0,
+                 "depth": 6.0},
+                {"kind": "plug", "x": 20.0, "y": -45.0, "diameter": 12.0, "length": 18.0,
+                 "material": "W-alloy-class-3"}]
+    job = write_job(tmp_path, web__features=features, correction__kind="holes")
+    folder = tmp_path / "plan"
+    folder.mkdir()
+    doc = api.build(job).document
+    (folder / "plan.json").write_bytes(plan_json_bytes(doc))
+    fp = json.loads((folder / "plan.json").read_text())["job_fingerprint"]
+    assert len(fp["fields"]["webs"][0]["features"]) == 3
+    # the digest is over the fields as written, so anyone can recompute it from the file
+    text = json.dumps(fp["fields"], sort_keys=True, separators=(",", ":"))
+    assert fp["sha256"] == hashlib.sha256(text.encode()).hexdigest()
+    trim = api.trim(job, previous=folder, unbalance="300", angle="40")
+    assert trim.document["trim"]["from_check"] == "matches the job"
