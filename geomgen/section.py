@@ -237,14 +237,17 @@ def check_size_for_engine(outline, *, stroke: float, pin_bore: float, source: st
         return
     across = _across(outline.outer)
     if rim > hi:
-        what = (f"its rim lies up to {rim:.6g} mm from the crank axis ({across:.6g} mm across), more than "
-                f"{RIM_MAX_STROKES:g} x the {stroke:g} mm stroke ({hi:g} mm) any web of this crank reaches")
+        what = (f"the outline cannot be a web of this crank: its rim lies up to {rim:.6g} mm from the crank "
+                f"axis ({across:.6g} mm across), more than {RIM_MAX_STROKES:g} x the {stroke:g} mm stroke "
+                f"({hi:g} mm) any web of this crank reaches")
     else:
-        what = (f"its rim lies at most {rim:.6g} mm from the crank axis ({across:.6g} mm across), not beyond "
-                f"the far edge of the {pin_bore:g} mm pin bore at {lo:g} mm")
+        what = (f"the pin bore ({pin_bore:g} mm at {_fmt((0.0, 0.5 * stroke))}) is not inside the outline: "
+                f"its rim lies at most {rim:.6g} mm from the crank axis ({across:.6g} mm across), not beyond "
+                f"the far edge of the pin bore at {lo:g} mm")
     fix = _unit_fix(outline, rim, lo, hi, override=override)
-    raise BadInput(f"{source}: the outline cannot be a web of this crank: {what}; "
-                   f"{outline.units_said(override=override)}; {fix}")
+    if rim <= lo:  # too small may also be a wrong stroke or origin, not only a unit
+        fix += ", or check engine.stroke and the drawing's origin"
+    raise BadInput(f"{source}: {what}; {outline.units_said(override=override)}; {fix}")
 
 
 def check_size_plausible(outline, *, source: str) -> None:

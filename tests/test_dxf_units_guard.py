@@ -99,7 +99,8 @@ def test_inch_drawing_read_as_mm_is_too_small_for_the_pin(tmp_path):
     assert done.returncode == 2
     line = one_line(done.stderr)
     assert "$INSUNITS = 4 (millimetres)" in line
-    assert "not beyond the far edge of the 28 mm pin bore at 46 mm" in line  # 64/2 + 28/2
+    assert "the pin bore (28 mm at (0, 32)) is not inside the outline" in line
+    assert "not beyond the far edge of the pin bore at 46 mm" in line  # 64/2 + 28/2
     assert 'if it is drawn in inches, set outline_units = "in"' in line
 
 
