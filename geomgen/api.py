@@ -338,7 +338,7 @@ def build(job: Job | PathLike | Mapping[str, Any]) -> Plan:
 
 def trim(job: Job | PathLike | Mapping[str, Any], *, previous: PathLike | Plan | Verified,
          unbalance: float | str, angle: float | str, against_rotation: bool = False,
-         web: str | None = None) -> Plan:
+         web: str | None = None, accept_other_plan: bool = False) -> Plan:
     """A correction that takes off an unbalance measured on the assembled crank with its bob weight.
 
     previous : the folder of an earlier plan or build (its plan.json), or a Plan / Verified; its
@@ -347,6 +347,8 @@ def trim(job: Job | PathLike | Mapping[str, Any], *, previous: PathLike | Plan |
     angle : the heavy spot from the crankpin as the balancing machine gives it, deg (or a unit
         string): in the direction of rotation ([engine] rotation), or against it with `against_rotation`.
     web : take it all off this web; default shared between the webs by their shares.
+    accept_other_plan : trim from a plan whose job_fingerprint differs from this job's (else BadInput
+        naming what differs); a plan written before the fingerprint existed is used with a warning.
     """
     from .pipeline import plan_webs
     from .study import study_of
@@ -357,13 +359,14 @@ def trim(job: Job | PathLike | Mapping[str, Any], *, previous: PathLike | Plan |
     unbalance_gmm = measured_unbalance(unbalance)
     reading = to_internal(angle, "angle", "--angle")
     crank_deg = crank_frame_angle(reading, rotation=job.engine.rotation, against_rotation=against_rotation)
-    existing, source = _previous_features(job, previous)
+    existing, source, checked, warnings = _previous_features(job, previous, accept_other=accept_other_plan)
     changes = trim_request(job, unbalance_gmm=unbalance_gmm, angle_deg=crank_deg, web_name=web)
     targets, tolerances = trim_targets(job, existing=existing, changes=changes, unbalance_gmm=unbalance_gmm)
     works = plan_webs(job, existing=existing, targets=targets, tolerances=tolerances, lighten=0.0)
     record = {"measured_gmm": unbalance_gmm, "reading_deg": reading, "crank_frame_deg": crank_deg,
               "reading_direction": "against the rotation" if against_rotation else "in the direction of rotation",
-              "from": source, "web": f"web {web}" if web else "both webs by their shares"}
+              "from": source, "web": f"web {web}" if web else "both webs by their shares",
+              "from_check": checked, "warnings": tuple(warnings)}
     return Plan(job=job, command="trim", webs=tuple(PlannedWeb.of(w) for w in works),
                 study=MappingProxyType(study_of(job)), trim=MappingProxyType(record))
 
@@ -394,17 +397,25 @@ def _as_job(job) -> Job:
     return job if isinstance(job, Job) else load_job(job)
 
 
-def _previous_features(job: Job, previous) -> tuple[dict, str]:
-    """({web name: features}, where they came from) of an earlier plan or build."""
-    from .plan_json import document_features, previous_features
+def _previous_features(job: Job, previous, *, accept_other: bool) -> tuple[dict, str, str, list[str]]:
+    """({web name: features}, where they came from, how the plan was checked to be this job's,
+    warnings) of an earlier plan or build."""
+    from .plan_json import document_features, read_plan
+    from .trimming import check_plan_belongs
 
     if isinstance(previous, (Plan, Verified)):
         plan_of = previous if isinstance(previous, Plan) else previous.plan
         name = f"the earlier {plan_of.command} of {plan_of.job.name}"
-        return document_features(job, dict(previous.document), where=f"previous ({name})"), f"{name} (in memory)"
-    if isinstance(previous, (str, os.PathLike)):
-        return previous_features(job, Path(previous)), str(previous)
-    raise BadInput(f"--from: expected a folder, a Plan or a Verified, got {type(previous).__name__}")
+        doc, where, source = dict(previous.document), f"previous ({name})", f"{name} (in memory)"
+    elif isinstance(previous, (str, os.PathLike)):
+        doc, path = read_plan(Path(previous))
+        where, source = f"--from {path}", str(previous)
+    else:
+        raise BadInput(f"--from: expected a folder, a Plan or a Verified, got {type(previous).__name__}")
+    # the plan must be this job's before its features are read as this job's webs
+    checked, warnings = check_plan_belongs(job, doc, where=where, accept_other=accept_other)
+    features = document_features(job, doc, where=where, file_name="plan.json")
+    return features, source, checked, warnings
 
 __all__ = ["Figures", "Inspection", "Plan", "PlannedWeb", "Verified", "VerifiedWeb", "build", "inspect",
            "load_job", "plan", "study", "trim", "write_study"]

@@ -17,7 +17,7 @@ from pathlib import Path
 
 from . import __version__, api
 from .errors import BadInput, GeomgenError, warn_all
-from .output import check_target
+from .output import Terminated, check_target, staged, write_files
 
 
 class _Parser(argparse.ArgumentParser):
@@ -68,6 +68,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--against-rotation", action="store_true",
                    help="the --angle reading was taken against the direction of rotation")
     p.add_argument("--web", metavar="NAME", help="take it all off this web (default: shared between both)")
+    p.add_argument("--accept-other-plan", action="store_true",
+                   help="trim from a --from plan made for a job that differs from JOB (named in a warning)")
     _add_out(p)
     return parser
 
@@ -112,7 +114,8 @@ def _cmd_trim(args) -> int:
         raise BadInput("--out: must differ from --from (the earlier plan is kept as it is)")
     job = _load(args)
     plan = api.trim(job, previous=args.from_dir, unbalance=args.unbalance, angle=args.angle,
-                    against_rotation=args.against_rotation, web=args.web)
+                    against_rotation=args.against_rotation, web=args.web,
+                    accept_other_plan=args.accept_other_plan)
     return _finish(args, plan)
 
 
@@ -125,8 +128,12 @@ def _load(args):
 
 def _finish(args, plan) -> int:
     """Solids, checks and files of a build, plan or trim; then the new warnings and the summary."""
-    verified = plan.verify()
-    written = verified.write(args.out, force=args.force)
+    # the staging folder is open while the solids are built (the long part), so that SIGTERM or a
+    # failure there removes it as it would during the writing itself
+    with staged(args.out, force=args.force) as stage:
+        verified = plan.verify()
+        write_files(stage, dict(verified.files))
+    written = sorted(verified.files)
     warn_all(line for line in verified.warnings if line not in plan.job.warnings)
     for line in verified.summary_lines():
         print(line)
@@ -149,6 +156,9 @@ def main(argv=None) -> int:
     except KeyboardInterrupt:
         print("geomgen: interrupted; nothing was written", file=sys.stderr)
         return 130
+    except Terminated:
+        print("geomgen: terminated (SIGTERM); nothing was written", file=sys.stderr)
+        return 128 + 15
 
 
 __all__ = ["main", "build_parser", "BadInput"]

@@ -55,6 +55,10 @@ INSUNITS_MM = {
     13: 1e-3,         # micrometres
     14: 100.0,        # decimetres
 }
+#: the names of those codes, for messages (0 = unitless)
+INSUNITS_NAMES = {0: "unitless", 1: "inches", 2: "feet", 3: "miles", 4: "millimetres", 5: "centimetres",
+                  6: "metres", 7: "kilometres", 8: "microinches", 9: "mils", 10: "yards", 11: "angstroms",
+                  12: "nanometres", 13: "micrometres", 14: "decimetres"}
 #: units a caller may give for a unitless drawing
 UNIT_NAMES_MM = {"mm": 1.0, "in": 25.4, "inch": 25.4, "cm": 10.0, "m": 1000.0}
 
@@ -67,12 +71,33 @@ class Outline:
     inner : tuple of Loop, each counter-clockwise — bores and holes inside it
     mm_per_unit : the drawing unit used, mm
     source : the file name, for messages
+    header_units : the drawing's $INSUNITS code (0 when absent)
+    units_given : the unit the caller gave ("mm", "in", ...), None when the header's was used
     """
 
     outer: Loop
     inner: tuple
     mm_per_unit: float
     source: str
+    header_units: int = 0
+    units_given: str | None = None
+
+    def units_said(self, *, override: str) -> str:
+        """How the unit was chosen, for a message about the outline's size.
+
+        override : how the caller names the unit option ("outline_units" in a job, "--units" for inspect).
+        """
+        code = self.header_units
+        header = f"the DXF header says $INSUNITS = {code} ({INSUNITS_NAMES.get(code, 'not a known unit')})"
+        if self.units_given is not None:
+            given = f"--units {self.units_given}" if override == "--units" else f'{override} = "{self.units_given}"'
+            return f"{header}, and {given} was given"
+        return f"{header}, read as {self.mm_per_unit:g} mm per drawing unit"
+
+    def units_that_fit(self, size_mm: float, lo: float, hi: float) -> list[str]:
+        """The unit names under which a size read as `size_mm` would lie within (lo, hi] mm."""
+        drawn = size_mm / self.mm_per_unit
+        return [name for name, mm in UNIT_NAMES_MM.items() if name != "inch" and lo < drawn * mm <= hi]
 
 
 # --------------------------------------------------------------------------
@@ -375,4 +400,6 @@ def read_outline(path, *, units: str | None = None, gap_tol: float = GAP_TOL_MM,
                 raise BadInput(f"{source}: the loop starting at {_fmt(loops[i].segments[0].start)} lies inside "
                                f"the bore starting at {_fmt(loops[k].segments[0].start)}; islands are not allowed")
         inner.append(i)
-    return Outline(loops[outer_i], tuple(loops[i] for i in inner), scale, str(path))
+    return Outline(loops[outer_i], tuple(loops[i] for i in inner), scale, str(path),
+                   header_units=int(doc.header.get("$INSUNITS", 0)),
+                   units_given=None if units is None else str(units).strip().lower())

@@ -23,7 +23,7 @@ from .features import feature_from_table, feature_massprops, feature_to_table
 from .massprops import MassProps
 from .rounding import fine, num, vec
 from .safety import safety_figures
-from .trimming import trim_figures
+from .trimming import job_fingerprint, trim_figures
 
 CAUTIONS = (
     "A crank that comes apart at speed can kill. These figures are design aids, not a release for service.",
@@ -128,12 +128,15 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
         "crank": crank_figures(job, webs, exact),
         "safety": safety_figures(job, webs),
         "cautions": list(CAUTIONS),
+        # which job this plan belongs to, so that a trim from it can check (geomgen.trimming)
+        "job_fingerprint": job_fingerprint(job),
     }
     density_range = plug_density_range(job, webs)
     if density_range is not None:
         doc["plug_density_range"] = density_range
     walls = [line for v in (verified or []) for line in v.get("wall_warnings", [])]
-    doc["warnings"] = list(job.warnings) + walls + doc["crank"]["warnings"]
+    doc["warnings"] = list(job.warnings) + walls + doc["crank"]["warnings"] + \
+        list((trim or {}).get("warnings", ()))
     if trim is not None:
         doc["trim"] = trim_figures(job, webs, exact, trim)
     if study_result is not None:
@@ -162,8 +165,8 @@ def jsonable(obj):
     return obj
 
 
-def previous_features(job, from_dir: Path) -> dict:
-    """{web name: features} of the plan.json in `from_dir` (an earlier plan or build), for a trim."""
+def read_plan(from_dir: Path) -> tuple[dict, Path]:
+    """(the plan.json document, its path) in `from_dir`, an earlier plan or build."""
     path = Path(from_dir) / "plan.json"
     try:
         doc = json.loads(path.read_text())
@@ -171,6 +174,14 @@ def previous_features(job, from_dir: Path) -> dict:
         raise BadInput(f"--from {from_dir}: no plan.json there; give the folder of an earlier plan or build") from None
     except (OSError, ValueError) as exc:
         raise BadInput(f"--from {path}: cannot read it ({exc})") from None
+    if not isinstance(doc, dict):
+        raise BadInput(f"--from {path}: not a geomgen plan.json (its top level is not a table)")
+    return doc, path
+
+
+def previous_features(job, from_dir: Path) -> dict:
+    """{web name: features} of the plan.json in `from_dir` (an earlier plan or build), for a trim."""
+    doc, path = read_plan(from_dir)
     return document_features(job, doc, where=f"--from {path}", file_name=path.name)
 
 

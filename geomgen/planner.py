@@ -45,6 +45,10 @@ ANGLE_STEP = 0.5          # deg, the grid hole positions are chosen on
 RADIUS_STEP = 0.5         # mm
 POCKET_CHORD = 0.05        # mm, flattening of kidney outlines for the containment test
 CANDIDATES = 40           # best layouts of the fewest features that are tuned and compared
+#: the most grid points (radius x angle) one search may visit: 2,000,000 is a rim 2.77 m from the axis
+#: at RADIUS_STEP x ANGLE_STEP, beyond any crank web; memory and time grow with it, so past it the
+#: input is wrong (a unit slip) and planning it would only exhaust the machine
+MAX_GRID_POINTS = 2_000_000
 
 
 @dataclass(frozen=True)
@@ -529,6 +533,13 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
         return WebPlan(name, "none", (), before, before, tuple(target), tolerance,
                        f"already within tolerance: off by {need:.1f} g*mm, allowed {tolerance:.1f} g*mm", "none")
     clearance = Clearance(section=section, existing=existing, limits=limits, keep_out=keep_out)
+    # Guard against a runaway: every method searches rings RADIUS_STEP apart out to the rim, each at
+    # ANGLE_STEP, so the work is known before it starts.  Refuse it rather than hang.
+    grid = int(clearance.r_max() / RADIUS_STEP) * int(round(180.0 / ANGLE_STEP) + 1)
+    if grid > MAX_GRID_POINTS:
+        raise BadInput(f"web {name}: the rim lies {clearance.r_max():.6g} mm from the crank axis, a search of "
+                       f"{grid} grid points (more than {MAX_GRID_POINTS}); no crank web is that large: check "
+                       "the outline's unit (outline_units) or the web's diameter")
     if lighten > 0:
         # first the lightening, balanced on its own; then the correction around it
         extra = _lightening_holes(name=name, section=section, clearance=clearance, limits=limits, lighten=lighten)

@@ -28,6 +28,14 @@ PIN_CENTRE_TOL_MM = 1e-3
 PIN_DIAMETER_TOL_MM = 1e-3
 #: chordal deviation of the polygons used for checks and the planner, mm
 POLYGON_CHORD_MM = 0.005
+#: the rim may lie at most this many strokes from the crank axis.  A full-circle single-cylinder web
+#: is some 2 to 3 strokes across (common practice), so 20 strokes of radius is far beyond any real
+#: web, yet a drawing in mm read as metres (1000x) always lands past it, and one read as inches
+#: (25.4x) does whenever the web's radius is more than 0.8 stroke.
+RIM_MAX_STROKES = 20.0
+#: a DXF outline that `inspect` measures (no engine to compare with) must be this size across, mm:
+#: the smallest is below any pin bore a crank has, the largest beyond any flywheel web (common practice)
+INSPECT_ACROSS_MM = (5.0, 3000.0)
 
 
 def _fmt(p) -> str:
@@ -151,6 +159,10 @@ def parametric_web(*, diameter: float, thickness: float, density_g_cm3: float, s
     if main_bore < 0:
         raise BadInput(f"{where}.main_bore: must be >= 0 mm (0 = integral mainshaft), got {main_bore}")
     pin_y = 0.5 * stroke
+    if 0.5 * diameter > RIM_MAX_STROKES * stroke:
+        raise BadInput(f"{where}.diameter: a {diameter:g} mm web has its rim {0.5 * diameter:g} mm from the axis, "
+                       f"more than {RIM_MAX_STROKES:g} x the {stroke:g} mm stroke ({RIM_MAX_STROKES * stroke:g} mm) "
+                       "any web of this crank reaches; check the unit of diameter")
     if pin_y + 0.5 * pin_bore >= 0.5 * diameter:
         raise BadInput(f"{where}.pin_bore: a {pin_bore:g} mm bore at {pin_y:g} mm from the axis reaches "
                        f"{pin_y + 0.5 * pin_bore:g} mm, past the {0.5 * diameter:g} mm rim of the "
@@ -195,6 +207,61 @@ def _near_miss(loops, centre, name, where, hint):
                            f"{_fmt(centre)} but not centred on it; {hint}")
 
 
+def _across(loop: Loop) -> float:
+    """The largest extent of a loop along X or Y, mm."""
+    x0, y0, x1, y1 = loop.polygon(POLYGON_CHORD_MM).bounds
+    return max(x1 - x0, y1 - y0)
+
+
+def _unit_fix(outline, size_mm: float, lo: float, hi: float, *, override: str) -> str:
+    """What to set so that a size read as `size_mm` lies in (lo, hi]: the override, with the units that fit."""
+    fits = outline.units_that_fit(size_mm, lo, hi)
+    spoken = {"mm": "millimetres", "in": "inches", "cm": "centimetres", "m": "metres"}
+    if override == "--units":
+        return (f"if it is drawn in {spoken[fits[0]]}, give --units {fits[0]}" if fits
+                else "check the drawing's unit and give --units mm, in, cm or m")
+    return (f'if it is drawn in {spoken[fits[0]]}, set {override} = "{fits[0]}" for this web' if fits
+            else f'check the drawing\'s unit and set {override} = "mm", "in", "cm" or "m" for this web')
+
+
+def check_size_for_engine(outline, *, stroke: float, pin_bore: float, source: str, override: str) -> None:
+    """BadInput if the outline cannot be a web of this crank: its rim must reach beyond the pin bore's
+    far edge (stroke/2 + pin_bore/2) and lie within RIM_MAX_STROKES strokes of the crank axis.
+
+    A wrong drawing unit (most often the metres ezdxf.new() writes into $INSUNITS) is the usual cause,
+    so the message names the unit header, the size read and the override that fixes it.
+    """
+    rim = max(_radius_range(s)[1] for s in outline.outer.segments)
+    lo, hi = 0.5 * stroke + 0.5 * pin_bore, RIM_MAX_STROKES * stroke
+    if lo < rim <= hi:
+        return
+    across = _across(outline.outer)
+    if rim > hi:
+        what = (f"the outline cannot be a web of this crank: its rim lies up to {rim:.6g} mm from the crank "
+                f"axis ({across:.6g} mm across), more than {RIM_MAX_STROKES:g} x the {stroke:g} mm stroke "
+                f"({hi:g} mm) any web of this crank reaches")
+    else:
+        what = (f"the pin bore ({pin_bore:g} mm at {_fmt((0.0, 0.5 * stroke))}) is not inside the outline: "
+                f"its rim lies at most {rim:.6g} mm from the crank axis ({across:.6g} mm across), not beyond "
+                f"the far edge of the pin bore at {lo:g} mm")
+    fix = _unit_fix(outline, rim, lo, hi, override=override)
+    if rim <= lo:  # too small may also be a wrong stroke or origin, not only a unit
+        fix += ", or check engine.stroke and the drawing's origin"
+    raise BadInput(f"{source}: {what}; {outline.units_said(override=override)}; {fix}")
+
+
+def check_size_plausible(outline, *, source: str) -> None:
+    """BadInput if an outline measured without an engine is not INSPECT_ACROSS_MM across (a unit slip)."""
+    lo, hi = INSPECT_ACROSS_MM
+    across = _across(outline.outer)
+    if lo <= across <= hi:
+        return
+    bound = f"larger than {hi:g} mm" if across > hi else f"smaller than {lo:g} mm"
+    fix = _unit_fix(outline, across, lo, hi, override="--units")
+    raise BadInput(f"{source}: the outline is {across:.6g} mm across, {bound}, so it is no crank web; "
+                   f"{outline.units_said(override='--units')}; {fix}")
+
+
 def outline_web(*, path, thickness: float, density_g_cm3: float, stroke: float, pin_bore: float,
                 main_bore: float = 0.0, units: str | None = None, where: str = "web.outline",
                 gap_tol: float = GAP_TOL_MM) -> WebSection:
@@ -211,10 +278,12 @@ def outline_web(*, path, thickness: float, density_g_cm3: float, stroke: float, 
     if not pin_bore > 0:
         raise BadInput(f"{where.rsplit('.', 1)[0]}.pin_bore: must be > 0 mm, got {pin_bore}")
     outline = read_outline(path, units=units, gap_tol=gap_tol, where=where)
+    source = f"{where} {path}"
+    override = "--units" if where == "inspect" else "outline_units"
+    check_size_for_engine(outline, stroke=stroke, pin_bore=pin_bore, source=source, override=override)
     pin_centre = (0.0, 0.5 * stroke)
     bores = list(outline.inner)
     names = [f"the drawn loop starting at {_fmt(b.segments[0].start)}" for b in bores]
-    source = f"{where} {path}"
 
     i = _drawn_bore(bores, pin_centre, pin_bore, key="pin_bore", source=source)
     if i is not None:
@@ -257,6 +326,7 @@ def inspect_dxf(path, *, thickness: float, density_g_cm3: float, units: str | No
                            pin_bore=pin_bore, units=units, where="inspect").massprops()
     _check_common(thickness=thickness, density_g_cm3=density_g_cm3, where="-")
     outline = read_outline(path, units=units, where="inspect")
+    check_size_plausible(outline, source=f"inspect {path}")
     check_bores(outline.outer, outline.inner, where=f"inspect {path}")
     return WebSection(outline.outer, outline.inner, (math.nan, math.nan), math.nan, float(thickness),
                       float(density_g_cm3)).massprops()

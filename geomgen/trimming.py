@@ -10,6 +10,8 @@ b is (-x, y) in the crank frame.  No CAD kernel.
 
 from __future__ import annotations
 
+import hashlib
+import json
 import math
 import re
 
@@ -18,7 +20,7 @@ import numpy as np
 from .crank import in_crank_frame
 from .errors import BadInput
 from .massprops import MassProps
-from .rounding import num, vec
+from .rounding import fine, num, vec
 from .webs import features_massprops, web_section
 
 _MASS_AT = re.compile(r"^\s*(?P<mass>.+?)\s+at\s+(?P<radius>.+?)\s*$")
@@ -105,5 +107,126 @@ def trim_figures(job, webs: list, exact: list[MassProps], trim: dict) -> dict:
             "reading_direction": trim["reading_direction"], "rotation": job.engine.rotation,
             "heavy_spot_crank_frame_deg": num(trim["crank_frame_deg"] % 360.0),
             "heavy_spot_gmm": vec(heavy), "on_webs": trim["web"], "from": trim["from"],
+            "from_check": trim.get("from_check", "not checked"),
             "change_gmm": vec(change), "change_per_web_gmm": per_web, "left_gmm": vec(left),
             "left_share_of_measured": num(float(np.hypot(*left)) / trim["measured_gmm"])}
+
+
+# ------------------------------------------------------------------ which job a plan belongs to
+def _fig(x) -> float:
+    return fine(float(x))
+
+
+def _canon(value):
+    """`value` as plan.json holds it: floats at 9 significant digits, tuples as lists, numpy made plain."""
+    if isinstance(value, dict):
+        return {str(k): _canon(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_canon(v) for v in value]
+    if isinstance(value, (float, np.floating)):
+        return _fig(value)
+    if isinstance(value, np.integer):
+        return int(value)
+    return value
+
+
+def _file_sha256(path) -> str | None:
+    try:
+        return hashlib.sha256(path.read_bytes()).hexdigest()
+    except (OSError, AttributeError):
+        return None
+
+
+def _canonical(job) -> dict:
+    """The job's facts that decide a web's features, as the job gives them (9 significant digits):
+    engine stroke, rod length, balance factor and every weighed mass; each web's name, geometry
+    (diameter, or the outline file's sha256 and outline_units), thickness, material, density, pin and
+    main bore, and its own features.  Not in it: max_rpm, shares, tilt, rotation, [correction] and
+    [output], which a trim may change without making the earlier plan another job's."""
+    e = job.engine
+    webs = []
+    for w in job.webs:
+        webs.append({"name": w.name,
+                     "diameter": None if w.diameter is None else _fig(w.diameter),
+                     "outline_sha256": None if w.outline is None else _file_sha256(w.outline),
+                     "outline_units": w.outline_units,
+                     "thickness": _fig(w.thickness), "material": w.material.name, "density": _fig(w.density),
+                     "pin_bore": _fig(w.pin_bore), "main_bore": _fig(w.main_bore),
+                     "features": [_canon(f.to_table()) for f in w.features]})
+    return {"engine": {"stroke": _fig(e.stroke), "rod_length": _fig(e.rod_length),
+                       "balance_factor": _fig(e.balance_factor),
+                       "reciprocating": {k: _fig(v) for k, v in sorted(e.reciprocating.items())},
+                       "rotating": {k: _fig(v) for k, v in sorted(e.rotating.items())},
+                       "crank_parts": {k: _fig(v) for k, v in sorted(e.crank_parts.items())}},
+            "webs": webs}
+
+
+def _digest(fields: dict) -> str:
+    return hashlib.sha256(json.dumps(fields, sort_keys=True, separators=(",", ":")).encode()).hexdigest()
+
+
+def job_fingerprint(job) -> dict:
+    """plan.json's "job_fingerprint": {"sha256": hex digest of the canonical JSON of `fields`, "fields"}."""
+    fields = _canonical(job)
+    return {"sha256": _digest(fields), "fields": fields}
+
+
+def _show(value) -> str:
+    if isinstance(value, float):
+        return f"{value:g}"
+    if isinstance(value, list):
+        return f"{len(value)} feature(s)" if all(isinstance(v, dict) for v in value) else str(value)
+    if value is None:
+        return "none"
+    return str(value)
+
+
+def _differences(job_side, plan_side, key: str):
+    """(key, in the job, in the plan) for each leaf that differs."""
+    if isinstance(job_side, dict) and isinstance(plan_side, dict):
+        for k in sorted(set(job_side) | set(plan_side)):
+            yield from _differences(job_side.get(k), plan_side.get(k), f"{key}.{k}" if key else k)
+    elif key == "webs" and isinstance(job_side, list) and isinstance(plan_side, list):
+        names_job = [w.get("name") for w in job_side]
+        names_plan = [w.get("name") for w in plan_side if isinstance(w, dict)]
+        if names_job != names_plan:
+            yield ("webs", ", ".join(map(str, names_job)), ", ".join(map(str, names_plan)))
+            return
+        for a, b in zip(job_side, plan_side):
+            yield from _differences(a, b, f"web {a['name']}")
+    elif key.endswith(".features") and isinstance(job_side, list) and isinstance(plan_side, list) \
+            and len(job_side) == len(plan_side):
+        for i, (a, b) in enumerate(zip(job_side, plan_side)):
+            yield from _differences(a, b, f"{key}[{i}]")
+    elif job_side != plan_side:
+        yield (key.replace(".outline_sha256", ".outline (file contents)"), job_side, plan_side)
+
+
+def check_plan_belongs(job, doc: dict, *, where: str, accept_other: bool) -> tuple[str, list[str]]:
+    """Check that the plan.json document `doc` was made for `job`.
+
+    Returns (how it was checked, for the trim record; warning lines).  Raises BadInput naming the
+    first thing that differs unless `accept_other` (--accept-other-plan).
+    """
+    mine = job_fingerprint(job)
+    theirs = doc.get("job_fingerprint")
+    if theirs is None:
+        return ("not checked: the plan has no job_fingerprint",
+                [f"{where}: has no job_fingerprint (written by a geomgen before it recorded one), so it cannot "
+                 "be checked to belong to this job; make sure it does"])
+    if isinstance(theirs, dict) and theirs.get("sha256") == mine["sha256"]:
+        return ("matches the job", [])
+    fields = theirs.get("fields") if isinstance(theirs, dict) else None
+    diffs = list(_differences(mine["fields"], fields if isinstance(fields, dict) else {}, ""))
+    if diffs:
+        key, a, b = diffs[0]
+        what = f"{key}: {_show(a)} in the job, {_show(b)} in {where}"
+        if len(diffs) > 1:
+            what += f" (and {len(diffs) - 1} more difference{'s' if len(diffs) > 2 else ''})"
+    else:
+        what = "its job_fingerprint does not match this job's"
+    if not accept_other:
+        raise BadInput(f"{where} was made for another job: {what}; give the folder of this job's plan, or add "
+                       "--accept-other-plan to trim from it anyway")
+    return (f"made for another job ({what}); used with --accept-other-plan",
+            [f"{where} was made for another job ({what}); trimming from it as --accept-other-plan asks"])
