@@ -45,18 +45,26 @@ def stages(folder: Path, name: str) -> list[Path]:
     return sorted(p for p in folder.iterdir() if p.name.startswith(f".{name}.writing-"))
 
 
+def _plan_until_staged(tmp_path, job, out, **popen):
+    """A real `geomgen plan` in a subprocess, returned once its staging folder is there: (process, folders)."""
+    proc = subprocess.Popen([sys.executable, "-m", "geomgen", "plan", str(job), "--out", str(out)],
+                            env=_env(), cwd=ROOT, **popen)
+    seen = []
+    while proc.poll() is None and not seen:
+        seen = stages(tmp_path, out.name)
+        time.sleep(0.005)
+    if not seen:
+        proc.wait()
+    assert seen, "the run ended before its staging folder was seen"
+    return proc, seen
+
+
 @pytest.mark.cad  # the subprocess builds solids
 def test_sigterm_during_plan_leaves_nothing(tmp_path):
     job = write_job(tmp_path)
     out = tmp_path / "out"
-    proc = subprocess.Popen([sys.executable, "-m", "geomgen", "plan", str(job), "--out", str(out)],
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, env=_env(), cwd=ROOT)
+    proc, seen = _plan_until_staged(tmp_path, job, out, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
     try:
-        seen = []
-        while proc.poll() is None and not seen:
-            seen = stages(tmp_path, "out")
-            time.sleep(0.005)
-        assert seen, "the run ended before its staging folder was seen"
         proc.send_signal(signal.SIGTERM)
         _, err = proc.communicate(timeout=300)
     finally:
@@ -120,14 +128,8 @@ def test_sigterm_inside_staged_removes_the_folder_and_restores_the_handler(tmp_p
 def test_sigkill_during_plan_is_cleaned_by_the_next_run(tmp_path):
     job = write_job(tmp_path)
     out = tmp_path / "out"
-    proc = subprocess.Popen([sys.executable, "-m", "geomgen", "plan", str(job), "--out", str(out)],
-                            stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=_env(), cwd=ROOT)
+    proc, seen = _plan_until_staged(tmp_path, job, out, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
     try:
-        seen = []
-        while proc.poll() is None and not seen:
-            seen = stages(tmp_path, "out")
-            time.sleep(0.005)
-        assert seen, "the run ended before its staging folder was seen"
         proc.send_signal(signal.SIGKILL)
         time.sleep(0.5)
         assert stages(tmp_path, "out") == seen  # SIGKILL cannot be caught: the folder stays
