@@ -469,7 +469,13 @@ def _correction(data) -> Correction:
                            "{points = [[x, y], ...]} (3+ points)")
     plug_raw = t.get("plug_material", "W-alloy-class-3")
     if isinstance(plug_raw, str):
-        plug = material(plug_raw, "correction.plug_material")
+        try:
+            plug = material(plug_raw, "correction.plug_material")
+        except BadInput:
+            if not any(ch.isdigit() for ch in plug_raw):
+                raise
+            # a density with its unit ("17.6 g/cm^3"), as any job number may be
+            plug = custom(to_internal(plug_raw, "density", "correction.plug_material"), "correction.plug_material")
     else:
         plug = custom(to_internal(plug_raw, "density", "correction.plug_material"), "correction.plug_material")
     return Correction(
@@ -539,10 +545,18 @@ def from_dict(data: dict, *, path: Path | None = None, base: Path | None = None)
     )
 
 
+#: files people pass for a job by mistake, and what they are
+_OTHER_FILES = {".step": "a STEP file", ".stp": "a STEP file", ".stl": "an STL mesh", ".dxf": "a DXF drawing"}
+
+
 def load(path, *, base=None) -> Job:
     """Read and validate a job file; every problem is a BadInput naming the file or key.
     Relative paths in it resolve against `base`, default the file's folder."""
     path = Path(path)
+    other = _OTHER_FILES.get(path.suffix.lower())
+    if other is not None:
+        raise BadInput(f"{path}: this is {other}, not a job; build, plan, study and trim read a job file (TOML), "
+                       "and `geomgen inspect` reads DXF, STEP and STL files")
     try:
         text = path.read_text(encoding="utf-8")
     except FileNotFoundError:

@@ -135,6 +135,13 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
     if density_range is not None:
         doc["plug_density_range"] = density_range
     walls = [line for v in (verified or []) for line in v.get("wall_warnings", [])]
+    iso = doc["crank"]["iso_21940_11"]
+    deviation = float(np.hypot(*doc["crank"]["deviation_gmm"]))
+    if deviation > iso["permissible_residual_gmm"]:
+        doc["crank"]["warnings"].append(
+            f"the crank's deviation from target, {deviation:.1f} g*mm, is more than the "
+            f"{iso['permissible_residual_gmm']:.1f} g*mm ISO 21940-11 G{iso['grade_mm_s']:g} permits for this rotor "
+            "at max_rpm: tighten bf_tolerance_percent or choose the grade you mean")
     doc["warnings"] = list(job.warnings) + walls + doc["crank"]["warnings"] + \
         list((trim or {}).get("warnings", ()))
     if trim is not None:

@@ -279,3 +279,34 @@ def test_couple_matches_the_exported_solids(tmp_path):
     doc = json.loads((tmp_path / "out" / "plan.json").read_text())
     assert doc["crank"]["couple_gmm2"] == pytest.approx([cx, cy], rel=1e-5, abs=1e-3)
     assert abs(cx) > 1000.0                 # the off-axis hole on both webs' outer faces: the x couples add
+
+
+def test_plug_material_may_be_a_density_with_its_unit(tmp_path):
+    job = _job(tmp_path, {"correction.plug_material": "17.6 g/cm^3"})
+    assert job.correction.plug_material.density == pytest.approx(17.6)
+    named = _job(tmp_path, {"correction.plug_material": "w-alloy-class-2"})   # names are case-blind
+    assert named.correction.plug_material.name == "W-alloy-class-2"
+
+
+def test_a_step_file_given_as_the_job_says_what_it_is(tmp_path, capsys):
+    from geomgen.cli import main
+
+    step = tmp_path / "web-a.step"
+    step.write_text("ISO-10303-21;\n")
+    assert main(["plan", str(step), "--out", str(tmp_path / "out")]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "is a STEP file, not a job" in err[0] and "geomgen inspect" in err[0]
+    assert not (tmp_path / "out").exists()
+
+
+def test_a_deviation_beyond_the_iso_grade_is_said_in_words(tmp_path):
+    """A bare web far from its target (the build of the job's own features): U_per = 1000 G m / Omega
+    (ISO 21940-11) is a few tens of g*mm, the deviation thousands: plan.json warns in words."""
+    from geomgen.plan_json import plan_document
+
+    job = _job(tmp_path)
+    webs = pipeline.plan_webs(job, method="none")
+    doc = plan_document(job, "build", webs, [], None)
+    iso = doc["crank"]["iso_21940_11"]["permissible_residual_gmm"]
+    assert math.hypot(*doc["crank"]["deviation_gmm"]) > iso
+    assert any("ISO 21940-11 G6.3 permits" in w for w in doc["warnings"])
