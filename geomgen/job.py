@@ -133,6 +133,7 @@ class WebSpec:
     pin_interference: float = 0.0          # diametral crankpin press fit, mm (0 = no press-fit screen)
     pin_inner_diameter: float = 0.0        # the crankpin's own bore, mm (0 = solid pin)
     pin_material: Material | None = None   # the crankpin's material (None = the web's)
+    shaft_diameter: float = 0.0            # an integral mainshaft where main_bore = 0: nothing new is cut there
 
     @property
     def density(self) -> float:
@@ -199,7 +200,7 @@ _ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt",
            "crank_parts", "rotation"}
 _BALANCER = {"share", "offset"}
 _WEB = {"diameter", "outline", "outline_units", "thickness", "material", "density", "pin_bore",
-        "main_bore", "features", "pin_interference", "pin_inner_diameter", "pin_material"}
+        "main_bore", "features", "pin_interference", "pin_inner_diameter", "pin_material", "shaft_diameter"}
 _WEBS = _WEB | {"name", "share"}
 _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
                "plug_material", "lighten", "point_angle", "depth_step", "bf_tolerance_percent",
@@ -331,6 +332,12 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
     thickness = _number(t, "thickness", where, "length", lo=0.0, lo_open=True, hi=200.0)
     pin_bore = _number(t, "pin_bore", where, "length", lo=0.0, lo_open=True)
     main_bore = _number(t, "main_bore", where, "length", default=0.0, lo=0.0)
+    # a web with no main bore carries its mainshaft there: as thick as the crankpin unless the job says
+    # (common practice, from memory); 0 = the web is free at its centre
+    shaft = _number(t, "shaft_diameter", where, "length", default=0.0 if main_bore else pin_bore, lo=0.0)
+    if main_bore and "shaft_diameter" in t:
+        raise BadInput(f"{where}.shaft_diameter: the web has a {main_bore:g} mm main bore; shaft_diameter is for "
+                       "a web with an integral mainshaft (main_bore = 0)")
     r = engine.crank_radius
     if main_bore and main_bore / 2 + pin_bore / 2 >= r:
         raise BadInput(f"{where}.main_bore: a {main_bore:g} mm main bore meets the {pin_bore:g} mm pin bore "
@@ -365,7 +372,7 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
     web_material = _resolve_material(t, where)
     fit, pin_inner, pin_material = _press_fit(t, where, pin_bore, web_material)
     return WebSpec(name=name, thickness=thickness, material=web_material, pin_bore=pin_bore,
-                   main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units,
+                   main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units, shaft_diameter=shaft,
                    features=features, share=share, pin_interference=fit, pin_inner_diameter=pin_inner,
                    pin_material=pin_material)
 

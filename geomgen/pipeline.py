@@ -20,7 +20,7 @@ from .plan_json import jsonable, plan_document, plan_json_bytes
 from .planner import WebPlan, plan_web
 from .safety import safety_figures  # noqa: F401
 from .trimming import crank_frame_angle, heavy_spot_vector  # noqa: F401
-from .webs import features_massprops, limits_of, web_section
+from .webs import features_massprops, keep_out_of, limits_of, web_section
 
 
 # ------------------------------------------------------------------ planning
@@ -75,7 +75,7 @@ def plan_webs(job, *, existing=None, targets=None, tolerances=None, method=None,
             else:
                 plan = plan_web(name=web.name, section=section, existing=feats, target=target, tolerance=tol,
                                 method=method or c.kind, limits=limits, plug_material=c.plug_material,
-                                keep_out=c.keep_out, lighten=c.lighten if lighten is None else lighten)
+                                keep_out=keep_out_of(job, web), lighten=c.lighten if lighten is None else lighten)
         work = WebWork(web, section, feats, plan)
         out.append(work)
         done.append(work)

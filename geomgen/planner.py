@@ -525,6 +525,12 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
     web_density = section.density_g_cm3
     plug_density = plug_material.density if plug_material is not None else None
     thickness = section.thickness
+    through_note = ""
+    if limits.through and thickness > limits.max_depth + 1e-9:
+        # a through hole is as deep as the web: no deeper than the machine may go
+        limits = replace(limits, through=False)
+        through_note = (f"; no through holes: the {thickness:g} mm web is deeper than max_depth "
+                        f"{limits.max_depth:g} mm")
     before = section.massprops() + _total(existing, thickness=thickness, web_density=web_density,
                                           plug_density=plug_density)
     need_vec = np.asarray(target, dtype=float) - before.unbalance
@@ -609,6 +615,7 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
                f"(fewest operations, then least mass and inertia change); " + "; ".join(tried))
     else:
         why = f"{chosen} as the job asks: {count} operation(s) on the {side}, {dmass:.2f} g changed"
+    why += through_note
     binding = _binding(feats, section=section, region_parts=None, limits=limits, thickness=thickness)
     return WebPlan(name, chosen, tuple(feats), before, predicted, tuple(target), tolerance, why, binding,
                    tuple(tried))

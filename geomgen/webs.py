@@ -34,3 +34,14 @@ def features_massprops(features, section) -> MassProps:
     """The change the features make to the bare web (each plug with its own material)."""
     return sum((feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3)
                 for f in features), MassProps.zero())
+
+
+def keep_out_of(job, web) -> tuple:
+    """Where nothing new may be cut on this web: the job's keep-out zones, and an integral mainshaft
+    (`shaft_diameter`, on a web with no main bore) grown by min_wall."""
+    from .job import KeepOut
+
+    zones = tuple(job.correction.keep_out)
+    if not web.main_bore and web.shaft_diameter > 0:
+        zones += (KeepOut(center=(0.0, 0.0), diameter=web.shaft_diameter + 2.0 * job.correction.min_wall),)
+    return zones

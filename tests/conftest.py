@@ -72,7 +72,7 @@ _MINIMAL = {
     "correction": {
         "kind": "holes",
         "drills": "metric",
-        "max_depth": 15.0,
+        "max_depth": 18.0,              # the drill reaches through the 18 mm web
         "min_wall": 3.0,
         "pin_wall": 6.0,
         "through": True,

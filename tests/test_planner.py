@@ -254,7 +254,7 @@ def _engine(draw):
 
 engines = st.composite(_engine)()
 
-LIMITS = Limits(min_wall=3.0, pin_wall=6.0, max_depth=15.0, through=True, drills=series("metric"),
+LIMITS = Limits(min_wall=3.0, pin_wall=6.0, max_depth=18.0, through=True, drills=series("metric"),
                 point_angle=118.0, depth_step=0.05)
 PLUG = custom(17.6, "test plug")
 
@@ -275,7 +275,7 @@ def _check_plan_analytically(e, plan):
     assert abs(total.unbalance[0]) <= 1e-6 * max(1.0, abs(total.unbalance[1])) + 0.05
     rows = [feature_to_table(f) for f in plan.features]
     pc.assert_walls(rows, outline=pc.disc_outline(e["diameter"]), pin_center=(0.0, 0.5 * e["stroke"]),
-                    pin_bore=e["pin_bore"], thickness=e["thickness"], min_wall=3.0, pin_wall=6.0, max_depth=15.0)
+                    pin_bore=e["pin_bore"], thickness=e["thickness"], min_wall=3.0, pin_wall=6.0, max_depth=LIMITS.max_depth)
 
 
 # planning one engine takes about a third of a second: CI (which sets CI) tries 25 engines, a developer's
@@ -354,7 +354,7 @@ def test_lighten_40_on_the_demo_job_is_feasible():
     lost = -sum((feature_massprops(f, thickness=18.0, web_density=STEEL) for f in extra), MassProps.zero()).mass
     assert lost == pytest.approx(40.0, abs=0.2)
     pc.assert_walls([feature_to_table(f) for f in layout], outline=pc.disc_outline(130.0), pin_center=(0, 32),
-                    pin_bore=28.0, thickness=18.0, min_wall=3.0, pin_wall=6.0, max_depth=15.0)
+                    pin_bore=28.0, thickness=18.0, min_wall=3.0, pin_wall=6.0, max_depth=LIMITS.max_depth)
     # ... so the planner must find one too
     plan = plan_web(name="a", section=section, existing=(), target=target, tolerance=tol, method="holes",
                     limits=LIMITS, lighten=40.0)
@@ -382,7 +382,7 @@ def test_small_lighten_is_feasible():
                      MassProps.zero()).unbalance
     assert math.hypot(u[0] - target[0], u[1] - target[1]) <= 26.4, (u, target)
     pc.assert_walls(rows, outline=pc.disc_outline(130.0), pin_center=(0.0, 32.0), pin_bore=28.0, thickness=18.0,
-                    min_wall=3.0, pin_wall=6.0, max_depth=15.0)
+                    min_wall=3.0, pin_wall=6.0, max_depth=LIMITS.max_depth)
 
 
 def test_blind_depths_are_multiples_of_depth_step():
