@@ -275,7 +275,8 @@ def _check_plan_analytically(e, plan):
     assert abs(total.unbalance[0]) <= 1e-6 * max(1.0, abs(total.unbalance[1])) + 0.05
     rows = [feature_to_table(f) for f in plan.features]
     pc.assert_walls(rows, outline=pc.disc_outline(e["diameter"]), pin_center=(0.0, 0.5 * e["stroke"]),
-                    pin_bore=e["pin_bore"], thickness=e["thickness"], min_wall=3.0, pin_wall=6.0, max_depth=LIMITS.max_depth)
+                    pin_bore=e["pin_bore"], thickness=e["thickness"], min_wall=3.0, pin_wall=6.0,
+                    max_depth=LIMITS.max_depth)
 
 
 # planning one engine takes about a third of a second: CI (which sets CI) tries 25 engines, a developer's
