@@ -206,6 +206,11 @@ _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through",
                "plug_material", "lighten", "point_angle", "depth_step", "bf_tolerance_percent",
                "tolerance_points", "iso_grade", "plug_fit"}
 _OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step", "crank_gap"}
+#: the unit a job number is held in, by kind (the README's "The job file")
+_UNIT_NAMES = {"length": "mm", "mass": "g", "speed": "rpm", "angle": "deg", "density": "g/cm^3"}
+#: where each key lives, to point a key put in the wrong table to its home
+_HOMES = {"the top level": _TOP, "engine": _ENGINE, "balancer": _BALANCER, "web": _WEB, "correction": _CORRECTION,
+          "output": _OUTPUT}
 KINDS = ("holes", "pockets", "plugs", "radial", "auto")
 ROTATIONS = ("ccw", "cw")
 
@@ -222,7 +227,9 @@ def _table(data, where: str, allowed: set) -> dict:
         raise BadInput(f"{where}: must be a table, got {type(data).__name__}")
     for key in data:
         if key not in allowed:
-            raise BadInput(f"{where}.{key}: unknown key{_close_match(key, allowed)}; "
+            home = next((table for table, keys in _HOMES.items() if key in keys and table != where), None)
+            belongs = f"; {key} belongs in {home}" if home else ""
+            raise BadInput(f"{where}.{key}: unknown key{_close_match(key, allowed) if not home else ''}{belongs}; "
                            f"allowed: {', '.join(sorted(allowed))}")
     return data
 
@@ -241,7 +248,10 @@ def _number(table: dict, key: str, where: str, kind: str, *, default=None, lo=No
         lo_txt = "" if lo is None else f"{'>' if lo_open else '>='} {lo:g}"
         hi_txt = "" if hi is None else f"{'<' if hi_open else '<='} {hi:g}"
         rng = " and ".join(t for t in (lo_txt, hi_txt) if t)
-        raise BadInput(f"{path}: {value:g} is out of range; must be {rng}")
+        unit = _UNIT_NAMES.get(kind, "")
+        shown = f"{value:g} {unit}".strip()
+        given = f"{table[key]!r} = {shown}" if isinstance(table[key], str) else shown
+        raise BadInput(f"{path}: {given} is out of range; must be {rng} {unit}".rstrip())
     return value
 
 

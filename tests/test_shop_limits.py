@@ -58,3 +58,18 @@ def test_lightening_keeps_off_the_shaft():
 
     assert min(edges(0.0)) < 28.0
     assert min(edges(50.0)) >= 28.0 - 1e-6
+
+
+@pytest.mark.parametrize("changes, words", [
+    ({"engine.stroke": "5 furlongs"}, ["engine.stroke: '5 furlongs' = 1.00584e+06 mm is out of range",
+                                       "<= 1000 mm"]),    # 5 furlongs = 1005.84 m (NIST SP 811)
+    ({"correction.overspeed": 1.3}, ["correction.overspeed: unknown key; overspeed belongs in the top level"]),
+    ({"web.max_depth": 12.0}, ["web.max_depth: unknown key; max_depth belongs in correction"]),
+])
+def test_messages_echo_the_input_and_point_a_key_home(changes, words):
+    with pytest.raises(BadInput) as err:
+        geomgen.load_job(minimal_job_dict(changes))
+    msg = str(err.value)
+    assert "\n" not in msg
+    for w in words:
+        assert w in msg, msg
