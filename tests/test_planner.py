@@ -25,7 +25,7 @@ import os
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, Phase, given, settings
 from hypothesis import strategies as st
 
 from geomgen.drills import series
@@ -254,7 +254,9 @@ def _engine(draw):
 
 engines = st.composite(_engine)()
 
-LIMITS = Limits(min_wall=3.0, pin_wall=6.0, max_depth=18.0, through=True, drills=series("metric"),
+# the drill reaches through every web drawn (14 .. 24 mm): through holes stay allowed, as a shop with that
+# reach would have them
+LIMITS = Limits(min_wall=3.0, pin_wall=6.0, max_depth=25.0, through=True, drills=series("metric"),
                 point_angle=118.0, depth_step=0.05)
 PLUG = custom(17.6, "test plug")
 
@@ -284,7 +286,10 @@ def _check_plan_analytically(e, plan):
 ENGINES = 25 if os.environ.get("CI") else 8
 
 
-@settings(max_examples=ENGINES, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+# no shrinking: an engine takes a third of a second to plan, and shrinking a failure would run for many
+# minutes; the first failing engine is reported as drawn
+@settings(max_examples=ENGINES, deadline=None, suppress_health_check=[HealthCheck.too_slow],
+          phases=[Phase.explicit, Phase.reuse, Phase.generate])
 @given(e=engines)
 def test_hypothesis_engines_planned_within_tolerance_and_walls(e):
     section = parametric_web(diameter=e["diameter"], thickness=e["thickness"], density_g_cm3=STEEL,
