@@ -192,7 +192,7 @@ def test_press_fit_keys_read_with_units_and_per_web():
 
 
 @pytest.mark.parametrize("web, start", [
-    ({"pin_interference": -0.01}, "web.pin_interference: -0.01 is out of range"),
+    ({"pin_interference": -0.01}, "web.pin_interference: -0.01 mm is out of range"),
     ({"pin_interference": 0.5}, "web.pin_interference: 0.5 mm is more than 1 % of the 28 mm pin bore"),
     ({"pin_inner_diameter": 28.0}, "web.pin_inner_diameter: 28 mm must be smaller"),
     ({"pin_material": "unobtainium"}, "web.pin_material: unknown material"),
