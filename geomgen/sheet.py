@@ -111,7 +111,10 @@ class SheetCells:
         self.correction, self.plug_density, self.where = correction, plug_density, where
         self._s = SUFFIX[units]
 
-    face_view = staticmethod(lambda x, face: face_view(x, face))
+    @staticmethod
+    def face_view(x: float, face: str) -> float:
+        """x as seen on the face being cut (see the module's face_view)."""
+        return face_view(x, face)
 
     def set(self, key: str, text: str) -> None:
         self.row[key] = text

@@ -12,7 +12,7 @@ Why the shapes are built the way they are:
 - every feature's tool (made by its kind, geomgen.kinds) is one tool of ONE boolean cut: a cut per
   feature grows with the square of the count (measured: 240 holes 0.23 s in
   one cut, 5.5 s one at a time);
-- a tool that leaves a face is extended `_OVERSHOOT` mm beyond it, so the
+- a tool that leaves a face is extended `kinds._tools.OVERSHOOT` mm beyond it, so the
   kernel never meets coplanar faces;
 - a plug is a separate solid built from the same cylinder as its bore, so it
   fills the bore exactly and never overlaps the body.
@@ -27,7 +27,6 @@ from .errors import BadInput, VerificationFailed
 from .walls import MIN_SOLID_WALL_MM, WallShortfall, measure_walls  # noqa: F401  (MIN_SOLID_WALL_MM: public)
 
 #: how far a tool reaches past the face it enters, mm (avoids coplanar faces)
-_OVERSHOOT = 1.0  # the same reach as geomgen.kinds._tools.OVERSHOOT
 #: relative volume agreement demanded of a clean()ed shape (clean() can corrupt a
 #: solid that still reports itself valid)
 _CLEAN_REL = 1e-9

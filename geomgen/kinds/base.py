@@ -18,6 +18,7 @@ The rest of geomgen asks the feature; the only table of kinds is the registry in
 from __future__ import annotations
 
 import math
+from abc import ABC, abstractmethod
 from dataclasses import MISSING, asdict, dataclass
 from typing import Any, ClassVar
 
@@ -60,7 +61,7 @@ class ReportCells:
     depth: str
 
 
-class FeatureKind:
+class FeatureKind(ABC):
     """The protocol of a feature kind (see the module docstring); subclasses are frozen dataclasses."""
 
     kind: ClassVar[str]
@@ -116,14 +117,16 @@ class FeatureKind:
     def allowed_faces(cls) -> tuple[str, ...]:
         return FACES
 
-    @classmethod
-    def read_more(cls, table: dict, values: dict, *, where: str, thickness: float | None, plug_material) -> None:
-        """Kind-specific keys (flags, materials) into `values`; the default reads nothing more."""
+    @classmethod  # noqa: B027  (a hook with a default: a pocket reads nothing more)
+    def read_more(cls, table: dict, values: dict, *, where: str, thickness: float | None,
+                  plug_material) -> None:
+        """Kind-specific keys (flags, materials) into `values`; by default a kind has none (a pocket)."""
 
     def to_table(self) -> dict:
         """The table written to plan.json (the keys a job accepts)."""
         return {k: v for k, v in asdict(self).items() if v is not None}
 
+    @abstractmethod
     def check(self, *, where: str, thickness: float | None) -> None:
         """Sizes that make no solid raise BadInput naming `where`."""
 
@@ -133,18 +136,21 @@ class FeatureKind:
             raise BadInput(f"{where}.{name}: must be > 0 mm, got {value}")
 
     # ---------------------------------------------------------------- geometry
+    @abstractmethod
     def footprint(self) -> Loop:
-        raise NotImplementedError
+        ...
 
     def footprint_polygon(self, max_chord_mm: float = 0.005):
         """The footprint as a shapely Polygon (flattened within `max_chord_mm` sagitta)."""
         return self.footprint().polygon(max_chord_mm)
 
+    @abstractmethod
     def z_range(self, thickness: float) -> tuple[float, float]:
-        raise NotImplementedError
+        ...
 
+    @abstractmethod
     def massprops(self, *, thickness: float, web_density: float, plug_density: float | None = None) -> MassProps:
-        raise NotImplementedError
+        ...
 
     def on(self, section) -> FeatureKind:
         """This feature placed on a web section (a radial hole finds its rim); most kinds need nothing."""
@@ -155,52 +161,51 @@ class FeatureKind:
         """Drawn dashed on the face view (cut from the other face, or inside the web)."""
         return self.face == "inner"
 
-    @property
-    def is_through(self) -> bool:
-        """Right through the web (its depth is not the planner's to tune)."""
-        return False
 
-    @property
-    def tuned_depth(self) -> float:
-        """The depth (or length) the planner tunes, mm."""
-        raise NotImplementedError
 
     def face_depth(self, thickness: float) -> float | None:
         """How deep it goes into the web from a face (what max_depth limits), mm; None if it goes right
         through or does not enter from a face."""
         return None
 
+    @abstractmethod
     def order_key(self) -> tuple:
         """Machining order: pockets first (they need the face), then holes and plug bores clockwise from +Y,
         then what needs another set-up (radial holes)."""
-        raise NotImplementedError
+        ...
 
     # ---------------------------------------------------------------- outputs
+    @abstractmethod
     def label(self) -> str:
-        raise NotImplementedError
+        ...
 
+    @abstractmethod
     def tag_point(self) -> tuple[float, float]:
         """Where the feature's number goes on a face view, web frame, mm."""
-        raise NotImplementedError
+        ...
 
+    @abstractmethod
     def report_cells(self) -> ReportCells:
-        raise NotImplementedError
+        ...
 
+    @abstractmethod
     def fill_sheet(self, cells) -> None:
         """Put this feature's columns of operations.csv through `cells` (a sheet.SheetCells)."""
-        raise NotImplementedError
+        ...
 
+    @abstractmethod
     def drawing_row(self, *, thickness: float, drill_series: str, plug_fit: str,
                     default_plug_density: float | None) -> tuple[str, ...]:
         """The cells under DRAWING_HEADINGS after the common no/status/face, and before mass/unbalance."""
-        raise NotImplementedError
+        ...
 
     def dimensions(self) -> list[Dimension]:
         return []
 
+    @abstractmethod
     def tool(self, thickness: float):
         """The cadquery solid this feature cuts from the web."""
-        raise NotImplementedError
+        ...
 
     def filler(self, thickness: float):
         """The solid that fills the cut (a plug), or None."""

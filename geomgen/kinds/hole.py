@@ -91,13 +91,7 @@ class Hole(RoundOnFace, FeatureKind):
             return (0.0, thickness)
         return face_z_range(self.face, thickness, self.depth + self.point_length)
 
-    @property
-    def is_through(self) -> bool:
-        return self.through
 
-    @property
-    def tuned_depth(self) -> float:
-        return self.depth
 
     def face_depth(self, thickness):
         return None if self.through else self.depth

@@ -86,9 +86,6 @@ class Plug(RoundOnFace, FeatureKind):
     def through_web(self, thickness: float) -> bool:
         return self.length >= thickness - 1e-9
 
-    @property
-    def tuned_depth(self) -> float:
-        return self.length
 
     def face_depth(self, thickness):
         return None if self.through_web(thickness) else self.length

@@ -63,9 +63,6 @@ class Pocket(FeatureKind):
     def z_range(self, thickness):
         return face_z_range(self.face, thickness, self.depth)
 
-    @property
-    def tuned_depth(self) -> float:
-        return self.depth
 
     def face_depth(self, thickness):
         return self.depth

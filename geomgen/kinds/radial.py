@@ -133,9 +133,6 @@ class Radial(FeatureKind):
         r = 0.5 * self.diameter
         return (self.z - r, self.z + r)
 
-    @property
-    def tuned_depth(self) -> float:
-        return self.depth
 
     def order_key(self):
         return (3, self.angle % 360.0)
