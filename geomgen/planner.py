@@ -495,7 +495,7 @@ def _plan_pocket(*, region, r_top, axis, need_vec, thickness, web_density, limit
 
 
 # ------------------------------------------------------------------ the web
-def _binding(features, *, section, region_parts, limits, thickness) -> str:
+def _binding(features, *, section, limits, thickness) -> str:
     """Which constraint is nearest to binding, measured on the footprints."""
     if not features:
         return "none"
@@ -557,7 +557,7 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
         why = (f"lightening: {len(extra)} blind holes in balanced sets of four take {taken:.2f} g off "
                f"({lighten:g} g asked) with no change to the unbalance; then {rest.why}")
         return WebPlan(name, rest.method, tuple(feats), before, rest.predicted, tuple(target), tolerance, why,
-                       _binding(feats, section=section, region_parts=None, limits=limits, thickness=thickness),
+                       _binding(feats, section=section, limits=limits, thickness=thickness),
                        rest.considered)
     remove_axis = _direction_angle(-need_vec)
     add_axis = _direction_angle(need_vec)
@@ -616,7 +616,7 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
     else:
         why = f"{chosen} as the job asks: {count} operation(s) on the {side}, {dmass:.2f} g changed"
     why += through_note
-    binding = _binding(feats, section=section, region_parts=None, limits=limits, thickness=thickness)
+    binding = _binding(feats, section=section, limits=limits, thickness=thickness)
     return WebPlan(name, chosen, tuple(feats), before, predicted, tuple(target), tolerance, why, binding,
                    tuple(tried))
 
