@@ -275,7 +275,19 @@ def _check_plan_analytically(e, plan):
     assert math.hypot(u[0] - target[0], u[1] - target[1]) <= tol + 1e-9, (u, target, tol)
     # the layout is a mirror image about Y (pairs or on the axis): its x moment cancels to rounding
     assert abs(total.unbalance[0]) <= 1e-6 * max(1.0, abs(total.unbalance[1])) + 0.05
-    rows = [feature_to_table(f) for f in plan.features]
+    rows = [feature_to_table(f) for f in plan.features if f.kind != "radial"]
+    for f in plan.features:
+        if f.kind == "radial":
+            # drilled in from the rim of the disc (radius D/2) on the radial line at `angle`: its tip lies
+            # D/2 - depth - point on that line; the drill (radius d/2) keeps pin_wall from the pin bore, and
+            # its axis at z keeps min_wall to both faces (closed forms on the disc)
+            a = math.radians(f.angle)
+            axis = np.array([-math.sin(a), math.cos(a)])
+            pin = np.array([0.0, 0.5 * e["stroke"]])
+            tip = 0.5 * e["diameter"] - f.depth - f.point_length
+            t = float(np.clip(pin @ axis, tip, 0.5 * e["diameter"]))
+            assert np.linalg.norm(pin - t * axis) - 0.5 * f.diameter - 0.5 * e["pin_bore"] >= 6.0 - 1e-3, f
+            assert min(f.z - 0.5 * f.diameter, e["thickness"] - f.z - 0.5 * f.diameter) >= 3.0 - 1e-9, f
     pc.assert_walls(rows, outline=pc.disc_outline(e["diameter"]), pin_center=(0.0, 0.5 * e["stroke"]),
                     pin_bore=e["pin_bore"], thickness=e["thickness"], min_wall=3.0, pin_wall=6.0,
                     max_depth=LIMITS.max_depth)
