@@ -322,7 +322,7 @@ def _balancer(data) -> Balancer:
     offset = t.get("offset", [0.0, 0.0])
     if not (isinstance(offset, list) and len(offset) == 2):
         raise BadInput(f"balancer.offset: must be [x, y] in mm, got {offset!r}")
-    off = tuple(to_internal(v, "length", f"balancer.offset[{i}]") for i, v in enumerate(offset))
+    off = tuple(to_internal(v, "length", f"balancer.offset[{i}]") for i, v in enumerate(offset, 1))
     return Balancer(share=share, offset=off)
 
 
@@ -378,7 +378,7 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
 
         features = tuple(feature_from_table(f, where=f"{where}.features[{i}]", thickness=thickness,
                                             plug_material=plug_material)
-                         for i, f in enumerate(raw))
+                         for i, f in enumerate(raw, 1))
     web_material = _resolve_material(t, where)
     fit, pin_inner, pin_material = _press_fit(t, where, pin_bore, web_material)
     return WebSpec(name=name, thickness=thickness, material=web_material, pin_bore=pin_bore,
@@ -421,7 +421,7 @@ def _webs(data: dict, engine: Engine, base: Path, plug_material: Material | None
         raise BadInput("webs: [[webs]] must list exactly two webs (a pressed-up crank has two)")
     webs, names = [], set()
     for i, entry in enumerate(listed):
-        where = f"webs[{i}]"
+        where = f"webs[{i + 1}]"
         t = _table(entry, where, _WEBS)
         name = str(t.get("name", "ab"[i]))
         if not name or not all(c.isalnum() or c in "-_" for c in name):
@@ -459,7 +459,7 @@ def _correction(data) -> Correction:
         drill_series, drills = drills_raw, series(drills_raw)
     elif isinstance(drills_raw, list) and drills_raw:
         drill_series = "list"
-        drills = tuple(sorted({to_internal(v, "length", f"correction.drills[{i}]") for i, v in enumerate(drills_raw)}))
+        drills = tuple(sorted({to_internal(v, "length", f"correction.drills[{i}]") for i, v in enumerate(drills_raw, 1)}))
         if drills[0] <= 0:
             raise BadInput(f"correction.drills: diameters must be > 0 mm, got {drills[0]:g}")
     else:
@@ -468,7 +468,7 @@ def _correction(data) -> Correction:
     if not isinstance(keep, list):
         raise BadInput("correction.keep_out: must be a list of circles {x, y, diameter} or polygons {points}")
     zones = []
-    for i, z in enumerate(keep):
+    for i, z in enumerate(keep, 1):
         zw = f"correction.keep_out[{i}]"
         if isinstance(z, dict) and set(z) <= {"x", "y", "diameter"} and "diameter" in z:
             zones.append(KeepOut(center=(_number(z, "x", zw, "length", default=0.0),
@@ -476,7 +476,7 @@ def _correction(data) -> Correction:
                                  diameter=_number(z, "diameter", zw, "length", lo=0.0, lo_open=True)))
         elif isinstance(z, dict) and set(z) == {"points"} and isinstance(z["points"], list) and len(z["points"]) >= 3:
             pts = []
-            for j, p in enumerate(z["points"]):
+            for j, p in enumerate(z["points"], 1):
                 if not (isinstance(p, list) and len(p) == 2):
                     raise BadInput(f"{zw}.points[{j}]: must be [x, y] in mm")
                 pts.append(tuple(to_internal(v, "length", f"{zw}.points[{j}]") for v in p))

@@ -28,6 +28,19 @@ INTERNAL = {
     "dimensionless": "",
 }
 
+#: what to write, per kind, in the messages that refuse a value
+EXAMPLES = {
+    "length": "2.5 in",
+    "mass": "9.2 oz",
+    "density": "0.284 lb/in^3",
+    "speed": "4200 rpm",
+    "angle": "30 deg",
+    "force": "400 lbf",
+    "unbalance": "12 g*mm",
+    "inertia": "5e6 g*mm^2",
+    "dimensionless": "0.5",
+}
+
 MM_PER_INCH = 25.4
 G_PER_LB = 453.59237
 N_PER_LBF = 4.4482216152605
@@ -72,20 +85,25 @@ def to_internal(value, kind: str, where: str) -> float:
         number = _parse(value, unit, kind, where)
     else:
         raise BadInput(f"{where}: expected a number or a string with a unit "
-                       f"(e.g. \"2.5 in\"), got {type(value).__name__} {value!r}")
+                       f"(e.g. \"{EXAMPLES[kind]}\"), got {type(value).__name__} {value!r}")
     if not math.isfinite(number):
         raise BadInput(f"{where}: must be a finite number, got {value!r}")
     return number
 
 
+def _article(word: str) -> str:
+    return "an" if word[:1] in "aeiou" else "a"
+
+
 def _parse(text: str, unit: str, kind: str, where: str) -> float:
-    text = text.strip()
+    # the shop writes products with a middle dot ("12 g·mm"); pint wants "*"
+    text = text.strip().replace("\u00b7", "*").replace("\u22c5", "*")
     try:
         return float(text)  # a number written as a string: internal unit
     except ValueError:
         pass
     if not _LEADING_NUMBER.match(text):
-        raise BadInput(f"{where}: {text!r} has no number; write e.g. \"2.5 in\" or a plain number in "
+        raise BadInput(f"{where}: {text!r} has no number; write e.g. \"{EXAMPLES[kind]}\" or a plain number in "
                        f"{unit or 'plain numbers'}")
     import pint
 
@@ -94,8 +112,8 @@ def _parse(text: str, unit: str, kind: str, where: str) -> float:
         quantity = ureg.Quantity(text)
     except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError,
             AttributeError, ValueError, TypeError, SyntaxError, AssertionError) as exc:
-        raise BadInput(f"{where}: cannot read {text!r} as a {kind} ({exc}); "
-                       f"write a number in {unit or 'plain numbers'} or e.g. \"2.5 in\"") from None
+        raise BadInput(f"{where}: cannot read {text!r} as {_article(kind)} {kind} ({exc}); "
+                       f"write a number in {unit or 'plain numbers'} or e.g. \"{EXAMPLES[kind]}\"") from None
     if not isinstance(quantity, ureg.Quantity):
         quantity = ureg.Quantity(float(quantity), "")
     try:

@@ -194,15 +194,15 @@ def test_typo_names_the_key_and_suggests_the_right_one(tmp_path):
     ({"correction.min_wal": 3.0}, "correction.min_wal"),
     ({"balancer.shar": 0.5}, "balancer.shar"),
     ({"output.sheet_unit": "mm"}, "output.sheet_unit"),
-    ({"web.features": [{**HOLE, "diam": 10.0}]}, "web.features[0]"),
-    ({"webs": [{"name": "a", "thick": 18.0}, {"name": "b"}]}, "webs[0].thick"),
+    ({"web.features": [{**HOLE, "diam": 10.0}]}, "web.features[1]"),
+    ({"webs": [{"name": "a", "thick": 18.0}, {"name": "b"}]}, "webs[1].thick"),
 ])
 def test_unknown_keys_in_every_table(tmp_path, changes, key):
     bad(tmp_path, changes, key, "unknown key", "allowed")
 
 
 def test_unknown_feature_key_is_named(tmp_path):
-    bad(tmp_path, {"web.features": [HOLE, {**POCKET, "radius": 1.0}]}, "web.features[1]", "'radius'")
+    bad(tmp_path, {"web.features": [HOLE, {**POCKET, "radius": 1.0}]}, "web.features[2]", "'radius'")
 
 
 # ------------------------------------------------------------------ numbers
@@ -334,11 +334,11 @@ def test_webs_must_be_two(tmp_path, webs):
 
 
 def test_web_names_unique(tmp_path):
-    bad(tmp_path, {"webs": [{"name": "a"}, {"name": "a"}]}, "webs[1].name", "twice")
+    bad(tmp_path, {"webs": [{"name": "a"}, {"name": "a"}]}, "webs[2].name", "twice")
 
 
 def test_web_names_are_file_safe(tmp_path):
-    bad(tmp_path, {"webs": [{"name": "a/b"}, {"name": "c"}]}, "webs[0].name", "letters, digits")
+    bad(tmp_path, {"webs": [{"name": "a/b"}, {"name": "c"}]}, "webs[1].name", "letters, digits")
 
 
 def test_web_shares_add_to_one(tmp_path):
@@ -349,13 +349,13 @@ def test_web_shares_add_to_one(tmp_path):
 # ------------------------------------------------------------------ features
 
 def test_unknown_feature_kind(tmp_path):
-    bad(tmp_path, {"web.features": [{**HOLE, "kind": "slot"}]}, "web.features[0].kind", "hole, pocket, plug",
+    bad(tmp_path, {"web.features": [{**HOLE, "kind": "slot"}]}, "web.features[1].kind", "hole, pocket, plug",
         "'slot'")
 
 
 def test_feature_missing_key(tmp_path):
     hole = {k: v for k, v in HOLE.items() if k != "depth"}
-    bad(tmp_path, {"web.features": [hole]}, "web.features[0]", "needs depth")
+    bad(tmp_path, {"web.features": [hole]}, "web.features[1]", "needs depth")
 
 
 def test_hole_deeper_than_the_web_with_its_point(tmp_path):
@@ -365,7 +365,7 @@ def test_hole_deeper_than_the_web_with_its_point(tmp_path):
     (hole,) = jobmod.load(write_job(tmp_path, web__features=[ok])).webs[0].features
     assert hole.point_length == pytest.approx(5 / math.tan(math.radians(59)), rel=1e-12)
     assert hole.point_length == pytest.approx(3.0043, abs=1e-4)
-    bad(tmp_path, {"web.features": [{**ok, "depth": 15.0}]}, "web.features[0].depth", "drill point", "18 mm web")
+    bad(tmp_path, {"web.features": [{**ok, "depth": 15.0}]}, "web.features[1].depth", "drill point", "18 mm web")
     # a flat-bottomed (180 deg) hole may go down to 18 mm exactly
     flat = {**HOLE, "depth": 18.0, "point_angle": 180.0}
     assert jobmod.load(write_job(tmp_path, web__features=[flat])).webs[0].features[0].point_length == 0.0
@@ -374,38 +374,38 @@ def test_hole_deeper_than_the_web_with_its_point(tmp_path):
 def test_pocket_corner_radius_too_big(tmp_path):
     # half the radial width: (55 - 40) / 2 = 7.5 mm
     assert jobmod.load(write_job(tmp_path, web__features=[{**POCKET, "corner_radius": 7.5}]))
-    bad(tmp_path, {"web.features": [{**POCKET, "corner_radius": 7.6}]}, "web.features[0].corner_radius", "7.5")
+    bad(tmp_path, {"web.features": [{**POCKET, "corner_radius": 7.6}]}, "web.features[1].corner_radius", "7.5")
 
 
 def test_pocket_must_leave_a_floor(tmp_path):
-    bad(tmp_path, {"web.features": [{**POCKET, "depth": 18.0}]}, "web.features[0].depth", "floor")
+    bad(tmp_path, {"web.features": [{**POCKET, "depth": 18.0}]}, "web.features[1].depth", "floor")
 
 
 def test_pocket_radii_order(tmp_path):
-    bad(tmp_path, {"web.features": [{**POCKET, "r_inner": 60.0}]}, "web.features[0]", "r_inner < r_outer")
+    bad(tmp_path, {"web.features": [{**POCKET, "r_inner": 60.0}]}, "web.features[1]", "r_inner < r_outer")
 
 
 def test_plug_longer_than_the_web(tmp_path):
-    bad(tmp_path, {"web.features": [{**PLUG, "length": 18.5}]}, "web.features[0].length", "18 mm web")
+    bad(tmp_path, {"web.features": [{**PLUG, "length": 18.5}]}, "web.features[1].length", "18 mm web")
 
 
 def test_feature_face(tmp_path):
-    bad(tmp_path, {"web.features": [{**HOLE, "face": "top"}]}, "web.features[0].face", "'outer' or 'inner'")
+    bad(tmp_path, {"web.features": [{**HOLE, "face": "top"}]}, "web.features[1].face", "'outer' or 'inner'")
 
 
 def test_plug_unknown_material(tmp_path):
-    bad(tmp_path, {"web.features": [{**PLUG, "material": "W-alloy-class-9"}]}, "web.features[0].material",
+    bad(tmp_path, {"web.features": [{**PLUG, "material": "W-alloy-class-9"}]}, "web.features[1].material",
         "known:")
 
 
 @pytest.mark.parametrize("rho", [0.0, -18.0, 1000.0])
 def test_plug_density_out_of_range(tmp_path, rho):
     plug = {k: v for k, v in PLUG.items() if k != "material"}
-    bad(tmp_path, {"web.features": [{**plug, "density": rho}]}, "web.features[0].density")
+    bad(tmp_path, {"web.features": [{**plug, "density": rho}]}, "web.features[1].density")
 
 
 def test_plug_material_and_density_together(tmp_path):
-    bad(tmp_path, {"web.features": [{**PLUG, "density": 17.0}]}, "web.features[0]", "not both")
+    bad(tmp_path, {"web.features": [{**PLUG, "density": 17.0}]}, "web.features[1]", "not both")
 
 
 def test_through_hole_depth_is_the_web_thickness(tmp_path):
@@ -413,7 +413,7 @@ def test_through_hole_depth_is_the_web_thickness(tmp_path):
     try:
         job = jobmod.load(write_job(tmp_path, web__features=[through]))
     except BadInput as exc:
-        assert "web.features[0].depth" in str(exc)
+        assert "web.features[1].depth" in str(exc)
         return
     assert job.webs[0].features[0].depth == 18.0
 
@@ -433,7 +433,7 @@ def test_correction_kinds_allowed(tmp_path):
     ("number", "unknown drill series"),
     ([], "'metric', 'inch' or a list"),
     ([0.0, 5.0], "> 0"),
-    ([5.0, "3 kg"], "correction.drills[1]"),
+    ([5.0, "3 kg"], "correction.drills[2]"),
 ])
 def test_drills(tmp_path, drills, fragment):
     bad(tmp_path, {"correction.drills": drills}, "correction.drills", fragment)
@@ -453,12 +453,12 @@ def test_keep_out_loads(tmp_path):
 
 
 @pytest.mark.parametrize("zone, key", [
-    ({"x": 0.0, "y": 0.0}, "correction.keep_out[0]"),                       # circle without diameter
-    ({"x": 0.0, "y": 0.0, "diameter": 5.0, "r": 1.0}, "correction.keep_out[0]"),
-    ({"points": [[0, 0], [1, 1]]}, "correction.keep_out[0]"),               # two points
-    ({"points": [[0, 0], [1, 1], [1, 2, 3]]}, "correction.keep_out[0].points[2]"),
-    ("centre", "correction.keep_out[0]"),
-    ({"x": 0.0, "y": 0.0, "diameter": -5.0}, "correction.keep_out[0].diameter"),
+    ({"x": 0.0, "y": 0.0}, "correction.keep_out[1]"),                       # circle without diameter
+    ({"x": 0.0, "y": 0.0, "diameter": 5.0, "r": 1.0}, "correction.keep_out[1]"),
+    ({"points": [[0, 0], [1, 1]]}, "correction.keep_out[1]"),               # two points
+    ({"points": [[0, 0], [1, 1], [1, 2, 3]]}, "correction.keep_out[1].points[3]"),
+    ("centre", "correction.keep_out[1]"),
+    ({"x": 0.0, "y": 0.0, "diameter": -5.0}, "correction.keep_out[1].diameter"),
 ])
 def test_keep_out_malformed(tmp_path, zone, key):
     bad(tmp_path, {"correction.keep_out": [zone]}, key)

@@ -8,6 +8,7 @@ Sources for the conversion factors:
 """
 
 import math
+import re
 
 import pytest
 from hypothesis import given, settings
@@ -108,3 +109,20 @@ def test_any_length_reads_the_same_in_mm_in_and_cm(x):
     assert to_internal(f"{x!r} mm", "length", "k") == pytest.approx(x, rel=1e-9)
     assert to_internal(f"{x / 25.4!r} in", "length", "k") == pytest.approx(x, rel=1e-9)
     assert to_internal(f"{x / 10!r} cm", "length", "k") == pytest.approx(x, rel=1e-9)
+
+
+@pytest.mark.parametrize(("kind", "example"), [("unbalance", "12 g*mm"), ("length", "2.5 in"),
+                                               ("speed", "4200 rpm"), ("mass", "9.2 oz")])
+def test_a_refused_value_is_answered_with_an_example_of_its_own_kind(kind, example):
+    # the example in the message must itself read back as that kind: 12 g*mm, 63.5 mm, 4200 rpm, 260.8 g
+    # (1 oz = 28.349523125 g, NIST SP 811)
+    with pytest.raises(BadInput, match=f'e.g. "{re.escape(example)}"'):
+        to_internal("12 furlongzz", kind, "--value")
+    expected = {"unbalance": 12.0, "length": 63.5, "speed": 4200.0, "mass": 9.2 * 28.349523125}[kind]
+    assert to_internal(example, kind, "k") == pytest.approx(expected, rel=1e-12)
+
+
+def test_an_unbalance_written_with_a_middle_dot_reads_as_g_mm():
+    # "g·mm" is how the trade prints it; 1 oz*in = 28.349523125 g x 25.4 mm (NIST SP 811)
+    assert to_internal("12 g·mm", "unbalance", "k") == pytest.approx(12.0)
+    assert to_internal("1 oz·in", "unbalance", "k") == pytest.approx(28.349523125 * 25.4, rel=1e-12)
