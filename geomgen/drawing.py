@@ -318,7 +318,9 @@ def drawing_dxf(*, job, doc: dict, webs) -> bytes:
         lowest = min(lowest, _draw_web(msp, dxf, w, entry, table, offset=(ox, 0.0)))
     left = -webs[0].section.rim_radius_max
     top = max(w.section.rim_radius_max for w in webs) + 40
-    _text(msp, f"geomgen correction drawing, job: {job.name}; all dimensions in mm", (left, top),
+    units_note = ("all dimensions in mm (operations.csv is in inch: 1 in = 25.4 mm)"
+                  if job.output.sheet_units == "inch" else "all dimensions in mm")
+    _text(msp, f"geomgen correction drawing, job: {job.name}; {units_note}", (left, top),
           layer="NOTES", height=TITLE_H + 1)
     spacing = "; ".join(f"web {w.spec.name} crank axis at x = {ox:.1f} mm" for w, ox in zip(webs, offsets))
     _text(msp, f"webs drawn side by side, each in its own frame: {spacing}", (left, top - 7), layer="NOTES")

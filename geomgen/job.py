@@ -459,7 +459,8 @@ def _correction(data) -> Correction:
         drill_series, drills = drills_raw, series(drills_raw)
     elif isinstance(drills_raw, list) and drills_raw:
         drill_series = "list"
-        drills = tuple(sorted({to_internal(v, "length", f"correction.drills[{i}]") for i, v in enumerate(drills_raw, 1)}))
+        drills = tuple(sorted({to_internal(v, "length", f"correction.drills[{i}]")
+                               for i, v in enumerate(drills_raw, 1)}))
         if drills[0] <= 0:
             raise BadInput(f"correction.drills: diameters must be > 0 mm, got {drills[0]:g}")
     else:

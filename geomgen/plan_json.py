@@ -93,7 +93,10 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
             "before": massprops_figures(p.before),
             "predicted": massprops_figures(p.predicted),
             "deviation_gmm": vec(deviation),
+            # on the crank's scale (one BF point = the reciprocating mass at the pin radius / 100), which is
+            # not the web's own: its share of the web's allowed |deviation| says how close it came
             "deviation_bf_percent": num(float(np.hypot(*deviation)) / e.bf_unit_gmm),
+            "deviation_share_of_tolerance": num(float(np.hypot(*deviation)) / p.tolerance) if p.tolerance > 0 else None,
             "within_tolerance": p.within_tolerance,
         }
         entry["features"] = entry["existing_features"] + entry["planned_features"]

@@ -233,11 +233,17 @@ def _balance_table(doc: dict) -> str:
         achieved = w.get("exact", w["predicted"])["unbalance_gmm"]
         ok = w["within_tolerance"]
         rows.append([_e(w["name"]), _e(w["method"]), _vec(w["target_gmm"]), _vec(achieved),
-                     f"{_n(w['tolerance_gmm'], 1)}", _vec(w["deviation_gmm"], 2), _n(w["deviation_bf_percent"], 3),
+                     f"{_n(w['tolerance_gmm'], 1)}", _vec(w["deviation_gmm"], 2), _share(w),
+                     _n(w["deviation_bf_percent"], 3),
                      f'<span class="{"ok" if ok else "bad"}">{"yes" if ok else "NO"}</span>'])
     return _table(["web", "method", "target x, y (g·mm)", "achieved x, y, exact solid (g·mm)",
-                   "allowed |deviation| (g·mm)", "deviation x, y (g·mm)", "|deviation| (BF %)",
-                   "within tolerance"], rows, left=2)
+                   "allowed |deviation| (g·mm)", "deviation x, y (g·mm)", "|deviation| / allowed",
+                   "|deviation| on the crank's BF scale (%)", "within tolerance"], rows, left=2)
+
+
+def _share(w: dict) -> str:
+    share = w.get("deviation_share_of_tolerance")
+    return "–" if share is None else f"{_n(100 * share, 1)} %"
 
 
 def _plug_range(doc: dict) -> str:

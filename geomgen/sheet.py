@@ -263,6 +263,8 @@ def sheet_notes(job, doc: dict) -> list[str]:
     if u == "in":
         lines.append("Inch fit limits are the metric ISO limits rounded inwards to 0.00001 in, so a part "
                      "inside them is inside the metric limits.")
+        lines.append("drawing.dxf stays in mm (its header says so), as the STEP files do: compare its "
+                     "figures with this sheet at 1 in = 25.4 mm.")
     lines += _plug_lines(job, doc)
     lines.append("mass_change and unbalance_change: what each feature does to its web, in the web frame "
                  "(seen from the outer face).")

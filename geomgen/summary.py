@@ -36,7 +36,7 @@ def summary_lines(doc: dict) -> list[str]:
         lines.append(f"web {w['name']}: {w['method']}, {len(w['planned_features'])} new feature(s); target "
                      f"{w['target_gmm'][1]:.1f} g*mm, predicted {w['predicted']['unbalance_gmm'][1]:.1f}, "
                      f"deviation {w['deviation_gmm'][0]:+.2f}, {w['deviation_gmm'][1]:+.2f} g*mm (|deviation| "
-                     f"allowed {w['tolerance_gmm']:.1f})")
+                     f"allowed {w['tolerance_gmm']:.1f}{_share_text(w)})")
         if "agreement" in w:
             pe = w["agreement"]["predicted_vs_exact"]
             lines.append(f"  verified: exact B-rep vs prediction {pe['unbalance_gmm']:.3g} g*mm, mass "
@@ -45,6 +45,11 @@ def summary_lines(doc: dict) -> list[str]:
             lines.append("  " + _feature_line(f))
     lines.append("CAUTION: " + CAUTIONS[0])
     return lines
+
+
+def _share_text(w: dict) -> str:
+    share = w.get("deviation_share_of_tolerance")
+    return "" if share is None else f", {100 * share:.0f} % of it used"
 
 
 def _feature_line(f: dict) -> str:

@@ -259,3 +259,20 @@ def test_table_values_against_plan_json(run):
                 assert row["plug material"] == f["material"]
                 # the plug's density as plan.json gives it for the job's plug material
                 assert row["plug g/cm3"] == f"{run['doc']['correction']['plug_density_g_cm3']:.2f}"
+
+
+def test_an_inch_sheet_says_the_drawing_stays_in_mm(run):
+    # the drawing's geometry is mm ($INSUNITS 4, checked above); with an inch sheet both files say so in words
+    import dataclasses
+    import io
+
+    from geomgen.drawing import drawing_dxf
+    from geomgen.sheet import sheet_notes
+
+    job = run["job"]
+    inch = dataclasses.replace(job, output=dataclasses.replace(job.output, sheet_units="inch"))
+    dxf = ezdxf.read(io.StringIO(drawing_dxf(job=inch, doc=run["doc"], webs=run["webs"]).decode()))
+    notes = [e.dxf.text for e in dxf.modelspace().query("TEXT") if e.dxf.layer == "NOTES"]
+    assert any("operations.csv is in inch: 1 in = 25.4 mm" in t for t in notes)
+    assert any("drawing.dxf stays in mm" in line for line in sheet_notes(inch, run["doc"]))
+    assert not any("drawing.dxf stays in mm" in line for line in sheet_notes(job, run["doc"]))

@@ -103,6 +103,10 @@ def test_iso_figure_balance_factor_and_targets(run):
         assert _shows(text, web["tolerance_gmm"], 1)
         assert _shows(text, web["target_gmm"][1], 1)
         assert _shows(text, web["deviation_bf_percent"], 3)
+        # the web's own share of its allowed |deviation|: |(dx, dy)| / tolerance, worked from plan.json's figures
+        share = (web["deviation_gmm"][0] ** 2 + web["deviation_gmm"][1] ** 2) ** 0.5 / web["tolerance_gmm"]
+        assert web["deviation_share_of_tolerance"] == pytest.approx(share, rel=1e-4)  # plan.json keeps 6 digits
+        assert _shows(text, 100 * share, 1)
 
 
 def test_each_web_has_its_feature_table(run):
