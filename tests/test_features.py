@@ -277,7 +277,9 @@ def test_random_kidneys_match_shapely_opening(ri, width, start, span, frac):
            and 2 * math.asin(rc / (ri + rc)) < math.radians(span) * 0.9)
     exact = kidney_loop(r_inner=ri, r_outer=ro, angle_start=start, angle_end=start + span,
                         corner_radius=rc).area_moments()
-    ref = _rounded_sector_reference(ri, ro, start, start + span, rc, quad_segs=1024)
+    # shapely's buffer by a subnormal radius (hypothesis tries 5e-324) takes tens of seconds; a corner under
+    # 1e-6 mm changes the area by under 1e-12 mm^2, far inside the tolerance, so the sharp sector stands for it
+    ref = _rounded_sector_reference(ri, ro, start, start + span, rc if rc >= 1e-6 else 0.0, quad_segs=1024)
     assert exact.area == pytest.approx(ref.area, rel=2e-5)
     scale = math.sqrt(ref.area)
     assert exact.centroid[0] == pytest.approx(ref.centroid.x, abs=2e-5 * scale)
