@@ -19,7 +19,7 @@ import io
 import math
 
 from .drawing_style import DIM_COLOUR, DIM_STYLE, new_document
-from .drawing_tables import HEADINGS, NOTES, web_rows
+from .drawing_tables import headings, note, web_rows
 
 TEXT_H = 2.5          # mm, table and label text
 TITLE_H = 4.0         # mm
@@ -129,7 +129,7 @@ def _com_marker(msp, com, *, offset, layer: str, label: str, left: bool) -> None
 
 def column_widths(kind: str, rows) -> list[float]:
     """Width of each column of a kind's table, mm: its longest cell or heading, plus a gap."""
-    heads = HEADINGS[kind]
+    heads = headings(kind)
     return [max([len(p) for p in heads[j]] + [len(r.cells[j]) for r in rows]) * CHAR_W + COLUMN_PAD
             for j in range(len(heads))]
 
@@ -149,7 +149,7 @@ def _summary_lines(entry: dict) -> list[str]:
 
 def block_width(entry: dict, tables: dict) -> float:
     """The width of the text under one web, mm: its widest table, table note or summary line."""
-    widths = [max(sum(column_widths(k, rows)), len(NOTES[k]) * CHAR_W) for k, rows in tables.items()]
+    widths = [max(sum(column_widths(k, rows)), len(note(k)) * CHAR_W) for k, rows in tables.items()]
     widths += [len(line) * CHAR_W for line in _summary_lines(entry)]
     return max(widths)
 
@@ -204,13 +204,13 @@ def _draw_view(msp, doc, w, entry: dict, *, offset, lay: dict) -> None:
 def _draw_tables(msp, tables: dict, *, x0: float, y: float, layer: str) -> float:
     """The tables from (x0, y) down; returns the y below the last one."""
     for kind, rows in tables.items():
-        _text(msp, NOTES[kind], (x0, y), layer=layer)
+        _text(msp, note(kind), (x0, y), layer=layer)
         y -= ROW_H
         xs = [x0]
         for width in column_widths(kind, rows)[:-1]:
             xs.append(xs[-1] + width)
         for line in (0, 1):
-            for x, head in zip(xs, HEADINGS[kind]):
+            for x, head in zip(xs, headings(kind)):
                 if head[line]:
                     _text(msp, head[line], (x, y), layer=layer)
             y -= ROW_H

@@ -25,17 +25,27 @@ from .kinds import KINDS
 #: stand the kind's own columns (geomgen.kinds: DRAWING_HEADINGS)
 _HEAD = (("no", ""), ("status", ""), ("face", ""))
 _TAIL = (("mass", "g"), ("unbalance", "x, y g*mm"))
-HEADINGS = {name: _HEAD + kind.DRAWING_HEADINGS + _TAIL for name, kind in KINDS.items()}
-COLUMNS = {kind: tuple(" ".join(p for p in h if p) for h in heads) for kind, heads in HEADINGS.items()}
-HOLE_COLUMNS, POCKET_COLUMNS, PLUG_COLUMNS = COLUMNS["hole"], COLUMNS["pocket"], COLUMNS["plug"]
 
-#: the line above each table, so nobody reads a plug bore as a drilled hole
-NOTES = {name: kind.DRAWING_NOTE for name, kind in KINDS.items()}
+
+def headings(kind: str) -> tuple[tuple[str, str], ...]:
+    """The two-line headings of `kind`'s table (read from the registry when asked, so a kind registered
+    later has its table too)."""
+    return _HEAD + KINDS[kind].DRAWING_HEADINGS + _TAIL
+
+
+def columns(kind: str) -> tuple[str, ...]:
+    """`kind`'s headings on one line each."""
+    return tuple(" ".join(p for p in h if p) for h in headings(kind))
+
+
+def note(kind: str) -> str:
+    """The line above `kind`'s table, so nobody reads a plug bore as a drilled hole."""
+    return KINDS[kind].DRAWING_NOTE
 
 
 @dataclass(frozen=True)
 class Row:
-    """One feature's line: its kind and the cells under COLUMNS[kind]."""
+    """One feature's line: its kind and the cells under columns(kind)."""
 
     kind: str
     cells: tuple[str, ...]

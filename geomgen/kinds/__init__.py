@@ -20,6 +20,28 @@ KINDS: dict[str, type[FeatureKind]] = {k.kind: k for k in (Hole, Pocket, Plug, R
 Feature = Hole | Pocket | Plug | Radial
 
 
+def register_kind(cls: type[FeatureKind]) -> type[FeatureKind]:
+    """Add a feature kind to the registry (usable as a class decorator); returns the class.
+
+    The class must subclass FeatureKind (so a missing method stops it being made), be a frozen dataclass
+    and name a `kind` no other kind uses.  Reading, walls, solids, verification, the sheet, the drawing and
+    the report then take it with no other change.
+    """
+    import dataclasses
+
+    if not (isinstance(cls, type) and issubclass(cls, FeatureKind)):
+        raise TypeError(f"{cls!r} is not a FeatureKind subclass")
+    if not dataclasses.is_dataclass(cls) or not cls.__dataclass_params__.frozen:
+        raise TypeError(f"{cls.__name__} must be a frozen dataclass")
+    name = cls.__dataclass_fields__["kind"].default if "kind" in cls.__dataclass_fields__ else None
+    if not isinstance(name, str) or not name:
+        raise TypeError(f"{cls.__name__} must give its `kind` a default name")
+    if name in KINDS and KINDS[name] is not cls:
+        raise ValueError(f"a feature kind named {name!r} is registered already")
+    KINDS[name] = cls
+    return cls
+
+
 def feature_from_table(table: dict, *, where: str, thickness: float | None = None,
                        plug_material=None) -> FeatureKind:
     """A feature from a job or plan.json table; BadInput names `where` and the key.
@@ -37,4 +59,5 @@ def feature_from_table(table: dict, *, where: str, thickness: float | None = Non
 
 
 __all__ = ["KINDS", "FACES", "Feature", "FeatureKind", "Dimension", "ReportCells", "Hole", "Pocket", "Plug",
-           "Radial", "feature_from_table", "kidney_loop", "cylinder_massprops", "cone_massprops", "point_length"]
+           "Radial", "feature_from_table", "register_kind", "kidney_loop", "cylinder_massprops", "cone_massprops",
+           "point_length"]

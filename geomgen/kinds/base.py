@@ -161,8 +161,6 @@ class FeatureKind(ABC):
         """Drawn dashed on the face view (cut from the other face, or inside the web)."""
         return self.face == "inner"
 
-
-
     def face_depth(self, thickness: float) -> float | None:
         """How deep it goes into the web from a face (what max_depth limits), mm; None if it goes right
         through or does not enter from a face."""

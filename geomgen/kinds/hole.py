@@ -91,8 +91,6 @@ class Hole(RoundOnFace, FeatureKind):
             return (0.0, thickness)
         return face_z_range(self.face, thickness, self.depth + self.point_length)
 
-
-
     def face_depth(self, thickness):
         return None if self.through else self.depth
 
