@@ -18,7 +18,7 @@ from __future__ import annotations
 import json
 import subprocess
 import sys
-from contextlib import contextmanager
+from contextlib import contextmanager, suppress
 
 import numpy as np
 
@@ -46,10 +46,21 @@ class Sidecar:
         return answer if isinstance(answer, dict) and answer.get("ok") else None
 
     def close(self) -> None:
-        try:
+        """End of input: the helper leaves on its own.  Its exit (tearing down scipy and matplotlib)
+        takes a few tenths of a second that the caller need not wait for; one that is still there after
+        that is killed, so no helper outlives its work for long."""
+        with suppress(OSError):
             self.proc.stdin.close()
+        self.proc.stdout.close()
+        if self.proc.poll() is None:
+            import threading
+
+            threading.Thread(target=self._reap, daemon=True).start()
+
+    def _reap(self) -> None:
+        try:
             self.proc.wait(timeout=10)
-        except (OSError, subprocess.TimeoutExpired):
+        except subprocess.TimeoutExpired:
             self.proc.kill()
 
 
