@@ -52,6 +52,9 @@ from .loops import CURVES, Arc, EllipseArc, Line, Loop, Spline
 GAP_TOL_MM = OUTLINE_GAP_MM
 #: the largest chaining tolerance a job may ask, mm
 GAP_MAX_MM = OUTLINE_GAP_MAX_MM
+#: ends this close are one point as they are, mm: round-off of the entities' own maths (1e-15 mm), far
+#: below the kernel's confusion distance (1e-7 mm), so no zero-length bridge is ever made
+SAME_POINT_MM = 1e-9
 #: chordal deviation of the polygons used for validity and containment, mm
 CHECK_CHORD_MM = 1e-3
 
@@ -300,9 +303,9 @@ def _bridge(a, b) -> tuple:
     A line's end moves onto the other end; else a spline's end pole does; else an arc is brought to
     the point of its circle nearest the other end and a line bridges what is left (across the arc,
     so the loop never doubles back on itself); else a line bridges the gap."""
-    if a.end == b.start:
-        return a, [], b
     gap = math.dist(a.end, b.start)
+    if gap <= SAME_POINT_MM:
+        return a, [], b
     if isinstance(b, Line) and b.length > 2 * gap:
         return a, [], Line(a.end, b.end)
     if isinstance(a, Line) and a.length > 2 * gap:
@@ -315,7 +318,7 @@ def _bridge(a, b) -> tuple:
         a = _arc_towards(a, b.start, at_end=True)
     elif isinstance(b, Arc):
         b = _arc_towards(b, a.end, at_end=False)
-    return a, ([] if a.end == b.start else [Line(a.end, b.start)]), b
+    return a, ([] if math.dist(a.end, b.start) <= SAME_POINT_MM else [Line(a.end, b.start)]), b
 
 
 def _join(segs: list, nxt) -> None:
@@ -330,7 +333,7 @@ def _close(segs: list) -> list:
     """Close the gap between the last segment's end and the first's start."""
     if len(segs) == 1:
         only = segs[0]
-        if only.end == only.start:
+        if math.dist(only.end, only.start) <= SAME_POINT_MM:
             return segs
         if isinstance(only, Spline):       # a closed spline whose ends miss by a little
             return [only.with_ends(end=only.start)]
@@ -372,8 +375,9 @@ def _chain(open_pieces: list, gap_tol: float, source: str, gap_key: str | None =
         i = int(free[0])
         others = [j for j in free if j != i]
         if others:
-            j = min(others, key=lambda k: dist[i, k])
-            raise BadInput(f"{source}: open loop: a gap of {dist[i, j]:.4g} mm between {_fmt(ends[i])} "
+            j = min(others, key=lambda k: math.dist(ends[i], ends[k]))
+            gap = math.dist(ends[i], ends[j])   # the true distance, also between one curve's own two ends
+            raise BadInput(f"{source}: open loop: a gap of {gap:.4g} mm between {_fmt(ends[i])} "
                            f"and {_fmt(ends[j])} ({_gap_help(gap_tol, gap_key)}); close it in the drawing")
         raise BadInput(f"{source}: open loop: the outline ends at {_fmt(ends[i])} with no other end "
                        f"within {gap_tol:g} mm ({_gap_help(gap_tol, gap_key)}); close it in the drawing")

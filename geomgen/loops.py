@@ -520,6 +520,15 @@ class Spline:
         m = (len(ph) - 1) // p
         return np.stack([ph[i * p:i * p + p + 1] for i in range(m)])
 
+    def bezier_pieces(self, at_least: int = 1) -> np.ndarray:
+        """(m, p+1, 3) the curve's Bezier pieces, homogeneous (w x, w y, w): one per knot span, halved
+        until there are at least `at_least` of them."""
+        pieces = self._pieces
+        while len(pieces) < at_least:
+            left, right = _bezier_halves(pieces)
+            pieces = np.stack([left, right], axis=1).reshape(-1, *pieces.shape[1:])
+        return pieces
+
     def with_ends(self, start: Point | None = None, end: Point | None = None) -> Spline:
         """The spline with its first / last pole moved onto `start` / `end` (closing a small gap in a
         drawing: the curve moves by at most the distance the pole moves)."""

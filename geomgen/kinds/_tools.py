@@ -21,14 +21,14 @@ def spline_edges(seg: Spline, z: float = 0.0) -> list:
     weights.  One edge per span rather than one B-spline edge of all spans: OpenCascade's volume
     integration (GProp) over a face swept from a many-span B-spline strays by some 1e-4 of the volume
     (measured on a 16-point fit spline rim), over the faces of its spans it agrees with the area
-    moments to 1e-12."""
+    moments to 1e-12.  A spline of one span is halved, so no edge closes on itself."""
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge
     from OCP.Geom import Geom_BezierCurve
     from OCP.gp import gp_Pnt
     from OCP.TColgp import TColgp_Array1OfPnt
     from OCP.TColStd import TColStd_Array1OfReal
 
-    pieces = seg._pieces
+    pieces = seg.bezier_pieces(at_least=2)
     edges = []
     for k, piece in enumerate(pieces):
         xy = piece[:, :2] / piece[:, 2:]
@@ -50,10 +50,12 @@ def spline_edges(seg: Spline, z: float = 0.0) -> list:
     return edges
 
 
-def ellipse_edge(seg: EllipseArc, z: float = 0.0):
-    """The elliptic arc as one exact ellipse edge (OpenCascade Geom_Ellipse) at height z (mm): its
-    frame has X along the major axis and Y along the minor one (Z turned over for a clockwise arc),
-    so the edge's parameter is the arc's own t."""
+def ellipse_edges(seg: EllipseArc, z: float = 0.0) -> list:
+    """The elliptic arc as exact ellipse edges (OpenCascade Geom_Ellipse) of at most a quarter turn
+    each, at height z (mm).  Their frame has X along the major axis and Y along the minor one (Z turned
+    over for a clockwise arc), so an edge's parameter is the arc's own t.  Quarter turns: GProp over
+    the face swept from one closed ellipse edge puts its centre of mass 2.6e-4 mm off (measured on a
+    24 x 12 mm ellipse), over quarter-turn faces it is exact to round-off."""
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge
     from OCP.Geom import Geom_Ellipse
     from OCP.gp import gp_Ax2, gp_Dir, gp_Elips, gp_Pnt
@@ -61,8 +63,9 @@ def ellipse_edge(seg: EllipseArc, z: float = 0.0):
     a, b = math.hypot(*seg.major), math.hypot(*seg.minor)
     frame = gp_Ax2(gp_Pnt(*seg.center, z), gp_Dir(0, 0, 1 if seg.ccw else -1), gp_Dir(seg.major[0], seg.major[1], 0))
     curve = Geom_Ellipse(gp_Elips(frame, a, b))
-    maker = BRepBuilderAPI_MakeEdge(curve) if seg.is_full else BRepBuilderAPI_MakeEdge(curve, seg.t0, seg.t1)
-    return cq.Edge(maker.Edge())
+    parts = max(1, math.ceil(seg.sweep / (0.5 * math.pi) - 1e-9))
+    cuts = [seg.t0 + seg.sweep * i / parts for i in range(parts)] + [seg.t1]
+    return [cq.Edge(BRepBuilderAPI_MakeEdge(curve, cuts[i], cuts[i + 1]).Edge()) for i in range(parts)]
 
 
 def loop_wire(loop: Loop, z: float = 0.0):
@@ -75,7 +78,7 @@ def loop_wire(loop: Loop, z: float = 0.0):
         elif isinstance(seg, Spline):
             edges.extend(spline_edges(seg, z))
         elif isinstance(seg, EllipseArc):
-            edges.append(ellipse_edge(seg, z))
+            edges.extend(ellipse_edges(seg, z))
         elif isinstance(seg, Arc) and abs(seg.sweep_deg) >= 360.0 - 1e-9:
             edges.append(cq.Edge.makeCircle(seg.radius, cq.Vector(*seg.center, z)))
         else:
