@@ -3,8 +3,9 @@
 A web is a prism: a plane section (the outline minus the bores) swept from
 z = 0 (inner face) to z = thickness (outer face), in the contract's web
 frame (crank axis = Z, pin centre at (0, stroke/2)).  Its mass properties
-are exact for lines and arcs (geomgen.loops), so they serve as the reference
-the CAD solid is checked against.
+are exact for lines and arcs and for the splines and ellipses of a drawing
+(geomgen.loops), so they serve as the reference the CAD solid is checked
+against.
 
 The crankpin bore is part of `bores`: a web's own unbalance is computed with
 its pin bore empty (the crankpin is counted among the rotating parts).
