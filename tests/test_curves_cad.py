@@ -104,3 +104,21 @@ def test_spline_web_mesh_is_closed(tmp_path):
     # the mesh lies inside the curved faces by at most the chord, 0.01 mm, over their area
     curved = sum(f.Area() for f in body.Faces() if f.geomType() != "PLANE")
     assert 0 <= exact - mesh.volume <= 0.01 * curved
+
+
+def test_plan_of_a_spline_web_verifies_to_round_off(tmp_path):
+    # the whole road: plan (holes through the planner's polygons of the spline), build, STEP, mesh;
+    # OpenCascade's exact figures against the prediction far inside verify's 1e-4, and small files
+    import geomgen
+
+    from conftest import DROP, minimal_job_dict
+
+    rim_doc().saveas(tmp_path / "web.dxf")
+    job = minimal_job_dict({"web.diameter": DROP, "web.outline": "web.dxf", "web.thickness": 17.0,
+                            "correction.max_depth": 14.0})
+    done = geomgen.plan(geomgen.load_job(job, base=tmp_path)).verify()
+    for web in done.webs:
+        assert web.predicted.mass == pytest.approx(web.exact.mass, rel=1e-10)
+        assert np.linalg.norm(web.exact.unbalance - web.predicted.unbalance) <= 1e-9 * np.linalg.norm(
+            web.predicted.unbalance)
+    assert max(len(b) for name, b in done.files.items() if name.endswith(".step")) < 1_000_000
