@@ -30,6 +30,7 @@ GAP_MM = 40.0         # mm between one web's drawing (or table) and the next
 #: advance is 0.72 of the height) and for the txt font of other readers
 CHAR_W = 0.8 * TEXT_H
 COLUMN_PAD = 4.0      # mm between columns
+CURVE_CHORD_MM = 1e-3  # mm, a spline or an ellipse of an outline is drawn as chords within this of it
 
 _LAYERS = {"OUTLINE": 7, "BORES": 8, "FEATURES": 1, "COM": 3, "AXES": 5, "TABLE": 7, "DIMS": DIM_COLOUR}
 
@@ -71,7 +72,7 @@ def add_loop(msp, loop, *, offset, layer: str, linetype: str | None = None):
         return msp.add_lwpolyline([(x + r, y, 1.0), (x - r, y, 1.0)], format="xyb", close=True,
                                   dxfattribs=attribs)
     pts = []
-    for seg in loop.segments:
+    for seg in loop.lines_and_arcs(CURVE_CHORD_MM).segments:   # a spline or an ellipse as its chords
         bulge = math.tan(math.radians(seg.sweep_deg) / 4.0) if isinstance(seg, Arc) else 0.0
         pts.append((seg.start[0] + ox, seg.start[1] + oy, bulge))
     return msp.add_lwpolyline(pts, format="xyb", close=True, dxfattribs=attribs)

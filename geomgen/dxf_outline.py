@@ -2,9 +2,15 @@
 
 The drawing's model space is read with ezdxf.  LINE, ARC, CIRCLE,
 LWPOLYLINE / POLYLINE (with bulges), SPLINE and ELLIPSE are taken; other
-entities (text, dimensions, hatches, points ...) are ignored.  Lines and
-arcs stay exact Line / Arc segments; only splines and ellipses are
-flattened, finely enough that the area error stays far below 1e-5.
+entities (text, dimensions, hatches, points ...) are ignored.  Every entity
+stays the curve it is: lines and arcs as Line / Arc, an ELLIPSE as an
+EllipseArc, a SPLINE as a Spline of its own poles, knots and weights (a
+spline drawn by fit points only is turned into poles by ezdxf's
+`construction_tool`, the interpolation CAD programs use).  A closed periodic
+spline is read on its parameter domain [knots[p], knots[n]], including the
+form with n + 1 knots that the DXF reference gives for periodic splines, so
+its two ends meet; every point a message names is a point on the curve, never
+a control point.
 
 Arcs are placed where they are drawn: an ARC or CIRCLE lives in its object
 coordinate system (OCS), and one with extrusion (0, 0, -1) — a mirrored arc —
@@ -12,10 +18,16 @@ has its x axis reversed and runs clockwise in the world frame.  The OCS is
 undone here, with ezdxf's own `ocs().to_wcs`.
 
 Open pieces are chained end to end when their ends lie within `gap_tol`
-(mm); a tiny remaining gap is closed by moving the end of an adjoining line
-onto the other end, or by a bridging line between two arcs.  Anything else
-is bad input with the place named: an open loop (the gap and its ends),
-three ends meeting at one point, a self-crossing loop, two outer loops.
+(mm, the job key `outline_gap`, default GAP_TOL_MM: CAD exports commonly
+leave gaps of a few micrometres up to 0.01 mm between entities that the
+designer drew as meeting, common practice).  The gap is closed so the loop is
+exact and valid: the end of an adjoining line moves onto the other end, or
+the end pole of a spline does (the curve then moves by at most the gap), or
+an arc is lengthened or shortened to the nearest point and a line of the
+remaining length (across the arc) bridges it.  Anything else is bad input
+with the place named: an open loop (the gap, its ends and the key that
+joins them), three ends meeting at one point, a self-crossing loop, two
+outer loops.
 
 Units come from the header variable $INSUNITS; a unitless drawing (0) needs
 the unit from the caller (the job key `outline_units`).  A unit the caller
@@ -33,12 +45,16 @@ import numpy as np
 import shapely
 
 from .errors import BadInput
-from .loops import Arc, Line, Loop
+from .job import OUTLINE_GAP_MAX_MM, OUTLINE_GAP_MM
+from .loops import CURVES, Arc, EllipseArc, Line, Loop, Spline
 
-#: default chaining tolerance, mm: ends closer than this are the same point
-GAP_TOL_MM = 1e-4
-#: chordal deviation used to flatten splines and ellipses, mm
-CURVE_TOL_MM = 2e-5
+#: default chaining tolerance, mm: ends closer than this are the same point (the job key outline_gap)
+GAP_TOL_MM = OUTLINE_GAP_MM
+#: the largest chaining tolerance a job may ask, mm
+GAP_MAX_MM = OUTLINE_GAP_MAX_MM
+#: ends this close are one point as they are, mm: round-off of the entities' own maths (1e-15 mm), far
+#: below the kernel's confusion distance (1e-7 mm), so no zero-length bridge is ever made
+SAME_POINT_MM = 1e-9
 #: chordal deviation of the polygons used for validity and containment, mm
 CHECK_CHORD_MM = 1e-3
 
@@ -138,29 +154,62 @@ def _arc_from_entity(entity, scale: float, where: str, full: bool = False) -> Ar
     return Arc((c[0] * scale, c[1] * scale), r, start_w, -sweep if flip else sweep)
 
 
-def _curve_points(entity, scale: float) -> np.ndarray:
-    """(n, 2) mm: a SPLINE or ELLIPSE flattened within CURVE_TOL_MM."""
-    tool = entity.construction_tool()
-    pts = np.array([(v.x, v.y) for v in tool.flattening(CURVE_TOL_MM / scale, segments=16)], dtype=float)
-    return pts * scale
+def _spline_from_entity(entity, scale: float, where: str) -> Spline:
+    """A SPLINE entity as a world-frame Spline (mm) on its parameter domain.
+
+    Control points, knots and weights as drawn (SPLINE coordinates are world coordinates); a spline
+    of fit points only through ezdxf's `construction_tool` (the cubic interpolation CAD programs
+    use).  A periodic spline stored the DXF reference's way, n control points and n + 1 knots, is
+    unwrapped: the first p poles repeated at the end and the knots continued by their period."""
+    handle = f"SPLINE {entity.dxf.handle}"
+    try:
+        n = entity.control_point_count()
+        p = int(entity.dxf.degree)
+        knots = [float(k) for k in entity.knots]
+        periodic = bool(entity.dxf.flags & entity.PERIODIC)
+        if n and periodic and p >= 1 and len(knots) == n + 1:
+            cps = np.array([(v[0], v[1], v[2]) for v in entity.control_points], dtype=float)
+            weights = [float(w) for w in entity.weights]
+            period = knots[-1] - knots[0]
+            cps = np.vstack([cps, cps[:p]])
+            weights = weights + weights[:p] if weights else []
+            knots = ([knots[n - p + i] - period for i in range(p)] + knots
+                     + [knots[i + 1] + period for i in range(p)])
+        else:
+            tool = entity.construction_tool()
+            cps = np.array([(v.x, v.y, v.z) for v in tool.control_points], dtype=float)
+            knots, weights, p = list(tool.knots()), list(tool.weights()), tool.degree
+    except (ValueError, IndexError, ZeroDivisionError) as exc:
+        raise BadInput(f"{where}: {handle} cannot be read as a B-spline ({exc})") from None
+    if len(cps) and np.ptp(cps[:, 2]) > 1e-9 * max(1.0, float(np.abs(cps).max())):
+        raise BadInput(f"{where}: {handle} is not drawn in a plane parallel to XY (its control points span "
+                       f"z {cps[:, 2].min():.6g} .. {cps[:, 2].max():.6g}); the outline must lie in XY")
+    try:
+        return Spline.from_nurbs(p, cps[:, :2] * scale, knots, weights)
+    except ValueError as exc:
+        raise BadInput(f"{where}: {handle} is not a valid B-spline ({exc})") from None
+
+
+def _ellipse_from_entity(entity, scale: float, where: str) -> EllipseArc:
+    """An ELLIPSE entity as a world-frame EllipseArc (mm): ezdxf's construction tool gives its axes in
+    world coordinates (a mirrored ellipse, extrusion -Z, has its minor axis on the clockwise side)."""
+    _check_planar(entity, where)
+    e = entity.construction_tool()
+    t0 = float(e.start_param)
+    sweep = (float(e.end_param) - t0) % (2 * math.pi)
+    if sweep <= 1e-12 or sweep >= 2 * math.pi - 1e-12:
+        sweep = 2 * math.pi
+    try:
+        return EllipseArc((e.center.x * scale, e.center.y * scale), (e.major_axis.x * scale, e.major_axis.y * scale),
+                          (e.minor_axis.x * scale, e.minor_axis.y * scale), t0, t0 + sweep)
+    except ValueError as exc:
+        raise BadInput(f"{where}: ELLIPSE {entity.dxf.handle} is not a valid ellipse ({exc})") from None
 
 
 def _pieces(msp, scale: float, where: str):
     """Closed loops and open pieces (lists of segments) from model space."""
     closed: list[Loop] = []
     open_pieces: list[list] = []
-
-    def add_points(pts):
-        # drop repeated points (zero-length chords) before making lines
-        keep = np.ones(len(pts), dtype=bool)
-        keep[1:] = np.linalg.norm(np.diff(pts, axis=0), axis=1) > 1e-12
-        pts = pts[keep]
-        if len(pts) < 2:
-            return
-        if len(pts) > 3 and math.dist(pts[0], pts[-1]) <= 1e-12:
-            closed.append(Loop.from_points(pts))
-        else:
-            open_pieces.append([Line(pts[i], pts[i + 1]) for i in range(len(pts) - 1)])
 
     def add_entity(e):
         kind = e.dxftype()
@@ -192,10 +241,14 @@ def _pieces(msp, scale: float, where: str):
                     segs.append(_arc_from_entity(v, scale, where))
             if segs:
                 open_pieces.extend(_split_polyline(segs))
-        elif kind in ("SPLINE", "ELLIPSE"):
-            if kind == "ELLIPSE":
-                _check_planar(e, where)
-            add_points(_curve_points(e, scale))
+        elif kind == "SPLINE":
+            open_pieces.append([_spline_from_entity(e, scale, where)])
+        elif kind == "ELLIPSE":
+            arc = _ellipse_from_entity(e, scale, where)
+            if arc.is_full:
+                closed.append(Loop((arc,)))
+            else:
+                open_pieces.append([arc])
 
     for entity in msp:
         add_entity(entity)
@@ -226,42 +279,84 @@ def _split_polyline(segs):
 # chaining
 # --------------------------------------------------------------------------
 
+def _arc_towards(arc: Arc, point, *, at_end: bool) -> Arc:
+    """The arc lengthened or shortened, at its end (or start), to the point of its circle nearest
+    `point`; the arc itself when that would turn it inside out."""
+    cx, cy = arc.center
+    ang = math.degrees(math.atan2(point[1] - cy, point[0] - cx))
+    if at_end:
+        delta = (ang - arc.end_deg + 180.0) % 360.0 - 180.0
+        sweep = arc.sweep_deg + delta
+        start = arc.start_deg
+    else:
+        delta = (ang - arc.start_deg + 180.0) % 360.0 - 180.0
+        sweep = arc.sweep_deg - delta
+        start = arc.start_deg + delta
+    if sweep * arc.sweep_deg <= 0 or abs(sweep) > 360.0:
+        return arc
+    return Arc(arc.center, arc.radius, start, sweep)
+
+
+def _bridge(a, b) -> tuple:
+    """(a', [lines], b'): segment `a` and `b` with the small gap from a's end to b's start closed.
+
+    A line's end moves onto the other end; else a spline's end pole does; else an arc is brought to
+    the point of its circle nearest the other end and a line bridges what is left (across the arc,
+    so the loop never doubles back on itself); else a line bridges the gap."""
+    gap = math.dist(a.end, b.start)
+    if gap <= SAME_POINT_MM:
+        return a, [], b
+    if isinstance(b, Line) and b.length > 2 * gap:
+        return a, [], Line(a.end, b.end)
+    if isinstance(a, Line) and a.length > 2 * gap:
+        return Line(a.start, b.start), [], b
+    if isinstance(b, Spline):
+        return a, [], b.with_ends(start=a.end)
+    if isinstance(a, Spline):
+        return a.with_ends(end=b.start), [], b
+    if isinstance(a, Arc):
+        a = _arc_towards(a, b.start, at_end=True)
+    elif isinstance(b, Arc):
+        b = _arc_towards(b, a.end, at_end=False)
+    return a, ([] if math.dist(a.end, b.start) <= SAME_POINT_MM else [Line(a.end, b.start)]), b
+
+
 def _join(segs: list, nxt) -> None:
     """Append segment `nxt` to `segs`, closing the small gap between them."""
-    prev = segs[-1]
-    if prev.end == nxt.start:
-        segs.append(nxt)
-    elif isinstance(nxt, Line):
-        segs.append(Line(prev.end, nxt.end))
-    elif isinstance(prev, Line):
-        segs[-1] = Line(prev.start, nxt.start)
-        segs.append(nxt)
-    else:
-        segs.append(Line(prev.end, nxt.start))
-        segs.append(nxt)
+    prev, extra, nxt = _bridge(segs[-1], nxt)
+    segs[-1] = prev
+    segs.extend(extra)
+    segs.append(nxt)
 
 
 def _close(segs: list) -> list:
     """Close the gap between the last segment's end and the first's start."""
-    first, last = segs[0], segs[-1]
-    if last.end == first.start:
-        return segs
-    if isinstance(last, Line) and len(segs) > 1:
-        segs[-1] = Line(last.start, first.start)
-    elif isinstance(first, Line) and len(segs) > 1:
-        segs[0] = Line(last.end, first.end)
-    else:
-        segs.append(Line(last.end, first.start))
-    return segs
+    if len(segs) == 1:
+        only = segs[0]
+        if math.dist(only.end, only.start) <= SAME_POINT_MM:
+            return segs
+        if isinstance(only, Spline):       # a closed spline whose ends miss by a little
+            return [only.with_ends(end=only.start)]
+        return [only, Line(only.end, only.start)]
+    last, extra, first = _bridge(segs[-1], segs[0])
+    return [first] + segs[1:-1] + [last] + extra
 
 
-def _chain(open_pieces: list, gap_tol: float, source: str) -> list[Loop]:
+def _gap_help(gap_tol: float, gap_key: str | None) -> str:
+    """What a message about an open loop says of the joining tolerance."""
+    if gap_key is None:
+        return f"ends closer than {gap_tol:g} mm are joined"
+    return f"{gap_key} = {gap_tol:g} mm joins closer ends; it may be raised to {GAP_MAX_MM:g} mm for export noise"
+
+
+def _chain(open_pieces: list, gap_tol: float, source: str, gap_key: str | None = "outline_gap") -> list[Loop]:
     """Open pieces joined end to end into closed loops."""
     loops = []
     pieces = []
     for piece in open_pieces:
-        # a piece closing on itself (a closed polyline) is a loop already
-        if len(piece) > 1 and math.dist(piece[0].start, piece[-1].end) <= gap_tol:
+        # a piece closing on itself (a closed polyline, a closed spline) is a loop already
+        closes = len(piece) > 1 or isinstance(piece[0], CURVES)
+        if closes and math.dist(piece[0].start, piece[-1].end) <= gap_tol:
             loops.append(Loop(tuple(_close(list(piece)))))
         else:
             pieces.append(piece)
@@ -280,11 +375,12 @@ def _chain(open_pieces: list, gap_tol: float, source: str) -> list[Loop]:
         i = int(free[0])
         others = [j for j in free if j != i]
         if others:
-            j = min(others, key=lambda k: dist[i, k])
-            raise BadInput(f"{source}: open loop: a gap of {dist[i, j]:.4g} mm between {_fmt(ends[i])} "
-                           f"and {_fmt(ends[j])} (ends closer than {gap_tol:g} mm are joined); close it in the drawing")
+            j = min(others, key=lambda k: math.dist(ends[i], ends[k]))
+            gap = math.dist(ends[i], ends[j])   # the true distance, also between one curve's own two ends
+            raise BadInput(f"{source}: open loop: a gap of {gap:.4g} mm between {_fmt(ends[i])} "
+                           f"and {_fmt(ends[j])} ({_gap_help(gap_tol, gap_key)}); close it in the drawing")
         raise BadInput(f"{source}: open loop: the outline ends at {_fmt(ends[i])} with no other end "
-                       f"within {gap_tol:g} mm; close it in the drawing")
+                       f"within {gap_tol:g} mm ({_gap_help(gap_tol, gap_key)}); close it in the drawing")
     branch = np.flatnonzero(degree > 1)
     if branch.size:
         raise BadInput(f"{source}: {int(degree[branch[0]]) + 1} ends meet at {_fmt(ends[branch[0]])}; "
@@ -356,12 +452,13 @@ def _valid_polygon(loop: Loop, source: str):
 
 
 def read_outline(path, *, units: str | None = None, gap_tol: float = GAP_TOL_MM,
-                 where: str = "outline") -> Outline:
+                 where: str = "outline", gap_key: str | None = "outline_gap") -> Outline:
     """The outer loop and the inner loops of a DXF drawing, in mm.
 
     path : the DXF file;  units : "mm" | "in" | "cm" | "m" for a unitless
     drawing (overrides $INSUNITS when given);  gap_tol : mm, ends closer than
-    this are joined;  where : the job key named in messages.
+    this are joined;  where : the job key named in messages;  gap_key : the
+    key that sets gap_tol, named in an open-loop message (None: none to name).
     Raises BadInput for a missing or unreadable file and for every fault of
     the outline (see the module notes).
     """
@@ -377,7 +474,9 @@ def read_outline(path, *, units: str | None = None, gap_tol: float = GAP_TOL_MM,
         raise BadInput(f"{source}: not a readable DXF file ({type(exc).__name__}: {exc})") from None
     scale = _mm_per_unit(doc, units, source)
     closed, open_pieces = _pieces(doc.modelspace(), scale, source)
-    loops = closed + _chain(open_pieces, gap_tol, source)
+    if not (gap_tol > 0 and math.isfinite(gap_tol)):
+        raise ValueError(f"gap_tol must be > 0 mm, got {gap_tol}")
+    loops = closed + _chain(open_pieces, gap_tol, source, gap_key)
     if not loops:
         raise BadInput(f"{source}: no closed outline found (LINE, ARC, CIRCLE, LWPOLYLINE, SPLINE, ELLIPSE)")
     loops = [loop.oriented(True) for loop in loops]

@@ -310,6 +310,35 @@ def repaired_mesh(stl_path):
     return mesh
 
 
+def _mesh_untriangulated_faces(shape, params) -> None:
+    """Mesh with the default triangulator the faces the Delabella one left bare.
+
+    Delabella leaves the side face of a web whose rim is a spline or an ellipse (a surface of linear
+    extrusion of that curve) without triangles (seen with OCP 7.9); the default triangulator meshes
+    it from the same edge nodes, so the mesh stays closed."""
+    from OCP.BRep import BRep_Tool
+    from OCP.BRepMesh import BRepMesh_IncrementalMesh
+    from OCP.IMeshTools import IMeshTools_MeshAlgoType_Watson
+    from OCP.TopAbs import TopAbs_FACE
+    from OCP.TopExp import TopExp_Explorer
+    from OCP.TopLoc import TopLoc_Location
+    from OCP.TopoDS import TopoDS
+
+    bare = []
+    explorer = TopExp_Explorer(shape, TopAbs_FACE)
+    while explorer.More():
+        face = TopoDS.Face_s(explorer.Current())
+        if BRep_Tool.Triangulation_s(face, TopLoc_Location()) is None:
+            bare.append(face)
+        explorer.Next()
+    if not bare:
+        return
+    params.MeshAlgo = IMeshTools_MeshAlgoType_Watson
+    params.InParallel = False
+    for face in bare:
+        BRepMesh_IncrementalMesh(face, params)
+
+
 def write_stl(shapes, path, *, tolerance: float = STL_TOLERANCE_MM,
               angular_tolerance: float = STL_ANGULAR_RAD) -> Path:
     """Mesh `shapes` (one shape or a sequence, written as one mesh) and write
@@ -339,6 +368,7 @@ def write_stl(shapes, path, *, tolerance: float = STL_TOLERANCE_MM,
     mesher = BRepMesh_IncrementalMesh(shape, params)
     if not mesher.IsDone():
         raise VerificationFailed(f"{Path(path).name}: meshing failed")
+    _mesh_untriangulated_faces(shape, params)
     path = Path(path)
     fd, raw = tempfile.mkstemp(suffix=".stl", dir=path.parent)
     os.close(fd)

@@ -16,6 +16,13 @@ from .fits import DEFAULT_FIT, check_fit
 from .materials import MATERIALS, Material, custom, material
 from .units import to_internal
 
+#: `outline_gap` default, mm: DXF ends closer than this are joined.  CAD exports commonly leave gaps of
+#: a few micrometres up to 0.01 mm between entities drawn as meeting (common practice); twice that is
+#: still far below what a rim is turned or ground to
+OUTLINE_GAP_MM = 0.02
+#: the largest `outline_gap`, mm: a wider gap is a fault of the drawing to be closed there, not noise
+OUTLINE_GAP_MAX_MM = 0.1
+
 
 @dataclass(frozen=True)
 class Balancer:
@@ -128,6 +135,7 @@ class WebSpec:
     diameter: float | None = None          # parametric full-circle web ...
     outline: Path | None = None            # ... or a closed DXF outline
     outline_units: str | None = None
+    outline_gap: float = OUTLINE_GAP_MM    # mm, DXF ends closer than this are joined
     features: tuple = ()
     share: float = 0.5                     # share of the crank's web target
     pin_interference: float = 0.0          # diametral crankpin press fit, mm (0 = no press-fit screen)
@@ -199,7 +207,7 @@ _TOP = {"name", "engine", "balancer", "web", "webs", "correction", "output", "ov
 _ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt", "reciprocating", "rotating",
            "crank_parts", "rotation"}
 _BALANCER = {"share", "offset"}
-_WEB = {"diameter", "outline", "outline_units", "thickness", "material", "density", "pin_bore",
+_WEB = {"diameter", "outline", "outline_units", "outline_gap", "thickness", "material", "density", "pin_bore",
         "main_bore", "features", "pin_interference", "pin_inner_diameter", "pin_material", "shaft_diameter"}
 _WEBS = _WEB | {"name", "share"}
 _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
@@ -353,6 +361,7 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
         raise BadInput(f"{where}.main_bore: a {main_bore:g} mm main bore meets the {pin_bore:g} mm pin bore "
                        f"at {r:g} mm from the axis; need main_bore/2 + pin_bore/2 < stroke/2")
     diameter = outline = units = None
+    gap = OUTLINE_GAP_MM
     if has_d:
         diameter = _number(t, "diameter", where, "length", lo=0.0, lo_open=True)
         if r + pin_bore / 2 >= diameter / 2:
@@ -367,6 +376,8 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
         units = t.get("outline_units")
         if units is not None and units not in ("mm", "in", "cm", "m"):
             raise BadInput(f"{where}.outline_units: must be 'mm', 'in', 'cm' or 'm', got {units!r}")
+        gap = _number(t, "outline_gap", where, "length", default=OUTLINE_GAP_MM, lo=0.0, lo_open=True,
+                      hi=OUTLINE_GAP_MAX_MM)
     raw = t.get("features", [])
     if not isinstance(raw, list):
         raise BadInput(f"{where}.features: must be a list of feature tables")
@@ -382,7 +393,8 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
     web_material = _resolve_material(t, where)
     fit, pin_inner, pin_material = _press_fit(t, where, pin_bore, web_material)
     return WebSpec(name=name, thickness=thickness, material=web_material, pin_bore=pin_bore,
-                   main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units, shaft_diameter=shaft,
+                   main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units, outline_gap=gap,
+                   shaft_diameter=shaft,
                    features=features, share=share, pin_interference=fit, pin_inner_diameter=pin_inner,
                    pin_material=pin_material)
 

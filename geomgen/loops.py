@@ -1,10 +1,13 @@
-"""Planar closed loops of exact segments (lines and circular arcs) and their
-area moments.
+"""Planar closed loops of exact segments (lines, circular arcs, NURBS splines
+and elliptic arcs) and their area moments.
 
 A web outline, a bore, a hole footprint and a kidney pocket are all closed
-loops of straight lines and circular arcs.  Their area moments are computed
-exactly, segment by segment, by Green's theorem; nothing is flattened unless
-a shapely polygon is asked for.  Every figure is in the plane of the web
+loops of straight lines and circular arcs; a drawn outline may also hold
+splines and ellipses.  Their area moments are computed segment by segment by
+Green's theorem: in closed form for lines and arcs, by Gauss-Legendre
+quadrature along splines and ellipses (exact to round-off for polynomial
+splines, see `Spline`); nothing is flattened unless a shapely polygon is
+asked for.  Every figure is in the plane of the web
 face: points (x, y) in mm, area mm^2, first moments mm^3, second moments
 mm^4, all about the origin (the crank axis).
 
@@ -24,7 +27,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from functools import cached_property
+from functools import cached_property, lru_cache
 
 import numpy as np
 import shapely
@@ -293,7 +296,432 @@ class Arc:
         return _arc_terms(self.center[0], self.center[1], self.radius, t0, t1)
 
 
-Segment = Line | Arc
+# --------------------------------------------------------------------------
+# curves: NURBS splines and elliptic arcs
+# --------------------------------------------------------------------------
+#
+# A spline or an ellipse from a drawing stays the curve it is: its area moments are the same line
+# integrals as above, evaluated by Gauss-Legendre quadrature along the curve, and the solid gets the
+# same curve as a B-spline or ellipse edge.  Only the polygons for containment checks are flattened,
+# within a stated chordal deviation.
+
+@lru_cache(maxsize=16)
+def _gauss01(n: int) -> tuple[np.ndarray, np.ndarray]:
+    """Gauss-Legendre nodes and weights on [0, 1]."""
+    x, w = np.polynomial.legendre.leggauss(n)
+    return 0.5 * (x + 1.0), 0.5 * w
+
+
+def _curve_terms(pts: np.ndarray, der: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """The six Green's-theorem terms (the module's forms) of a curve sampled at quadrature nodes.
+
+    pts, der : (..., 2) points and derivatives d(x, y)/dt;  w : (...) quadrature weights in t.
+    """
+    x, y = pts[..., 0], pts[..., 1]
+    dx, dy = der[..., 0] * w, der[..., 1] * w
+    return np.array([
+        np.sum(x * dy),
+        np.sum(x * x * dy) / 2.0,
+        -np.sum(y * y * dx) / 2.0,
+        np.sum(x ** 3 * dy) / 3.0,
+        np.sum(x * x * y * dy) / 2.0,
+        -np.sum(y ** 3 * dx) / 3.0,
+    ])
+
+
+def _insert_knot(ph: np.ndarray, knots: np.ndarray, p: int, u: float) -> tuple[np.ndarray, np.ndarray]:
+    """Knot u inserted once (Boehm's algorithm on homogeneous poles (n, 3)); the curve is unchanged."""
+    n = len(ph)
+    k = int(np.searchsorted(knots, u, side="right")) - 1
+    k = min(max(k, p), n - 1)
+    out = np.empty((n + 1, 3))
+    out[:k - p + 1] = ph[:k - p + 1]
+    for i in range(k - p + 1, k + 1):
+        a = (u - knots[i]) / (knots[i + p] - knots[i])
+        out[i] = (1.0 - a) * ph[i - 1] + a * ph[i]
+    out[k + 1:] = ph[k:]
+    return out, np.insert(knots, k + 1, u)
+
+
+def _raise_multiplicity(ph, knots, p: int, u: float, target: int):
+    while np.count_nonzero(knots == u) < target:
+        ph, knots = _insert_knot(ph, knots, p, u)
+    return ph, knots
+
+
+def _clamped(ph: np.ndarray, knots: np.ndarray, p: int) -> tuple[np.ndarray, np.ndarray]:
+    """The curve on its domain [knots[p], knots[n]] as a clamped spline: it starts at its first pole
+    and ends at its last.  An unclamped knot vector (a closed periodic spline) is clamped by knot
+    insertion, which leaves the curve as it is."""
+    n = len(ph)
+    a, b = float(knots[p]), float(knots[n])
+    ph, knots = _raise_multiplicity(ph, knots, p, a, p)
+    ph, knots = _raise_multiplicity(ph, knots, p, b, p)
+    last_a = int(np.flatnonzero(knots == a)[-1])
+    first_b = int(np.flatnonzero(knots == b)[0])
+    poles = ph[last_a - p:first_b]
+    inner = knots[last_a + 1:first_b]
+    return poles, np.concatenate([np.full(p + 1, a), inner, np.full(p + 1, b)])
+
+
+def _bernstein(p: int, s: np.ndarray) -> np.ndarray:
+    """(len(s), p + 1) Bernstein polynomials of degree p at s."""
+    i = np.arange(p + 1)
+    binom = np.array([math.comb(p, k) for k in i], dtype=float)
+    return binom * s[:, None] ** i * (1.0 - s[:, None]) ** (p - i)
+
+
+def _bezier_eval(pieces: np.ndarray, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Points and d/ds of rational Bezier pieces (m, p+1, 3) at s (k,): each (m, k, 2)."""
+    p = pieces.shape[1] - 1
+    b = _bernstein(p, s)
+    cw = np.einsum("ki,mij->mkj", b, pieces)
+    if p > 0:
+        b1 = _bernstein(p - 1, s)
+        db = np.zeros_like(b)
+        db[:, 1:] += p * b1
+        db[:, :-1] -= p * b1
+    else:
+        db = np.zeros_like(b)
+    dcw = np.einsum("ki,mij->mkj", db, pieces)
+    w = cw[..., 2:]
+    pts = cw[..., :2] / w
+    der = (dcw[..., :2] - pts * dcw[..., 2:]) / w
+    return pts, der
+
+
+def _bezier_halves(pieces: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """De Casteljau at s = 1/2 of homogeneous Bezier pieces (m, p+1, 3): (left, right)."""
+    p = pieces.shape[1] - 1
+    work = pieces.copy()
+    left = np.empty_like(pieces)
+    right = np.empty_like(pieces)
+    left[:, 0] = work[:, 0]
+    right[:, p] = work[:, p]
+    for r in range(1, p + 1):
+        work = 0.5 * (work[:, :-1] + work[:, 1:])
+        left[:, r] = work[:, 0]
+        right[:, p - r] = work[:, -1]
+    return left, right
+
+
+def _hull_off_chord(pieces: np.ndarray) -> np.ndarray:
+    """(m,) the largest distance of a piece's (projected) control points from its chord, mm.
+
+    Positive weights keep a rational Bezier curve inside the convex hull of its projected control
+    points, and the distance to a segment is convex, so this bounds how far the curve strays from its
+    chord (and, the curve running from one end of the chord to the other, the chord from the curve)."""
+    q = pieces[..., :2] / pieces[..., 2:]
+    a, b = q[:, :1, :], q[:, -1:, :]
+    ab = b - a
+    span = np.sum(ab * ab, axis=2)
+    t = np.where(span > 0, np.sum((q - a) * ab, axis=2) / np.where(span > 0, span, 1.0), 0.0)
+    t = np.clip(t, 0.0, 1.0)
+    off = q - (a + t[..., None] * ab)
+    return np.sqrt(np.sum(off * off, axis=2)).max(axis=1)
+
+
+#: quadrature nodes per piece for rational curves, and the relative accuracy asked of them
+RATIONAL_NODES = 12
+RATIONAL_REL = 1e-14
+
+
+@dataclass(frozen=True)
+class Spline:
+    """A planar NURBS curve, clamped: it starts at its first pole and ends at its last.
+
+    degree : p >= 1
+    poles : ((x, y), ...) mm, at least p + 1 of them
+    knots : the full knot vector, len(poles) + p + 1 non-decreasing values, the first p + 1 equal and
+            the last p + 1 equal (`Spline.from_nurbs` clamps any other)
+    weights : one positive weight per pole, or () for a polynomial (non-rational) spline
+
+    Area moments: Green's line integrals by Gauss-Legendre quadrature on each Bezier piece.  On a
+    polynomial spline of degree p the integrands are polynomials of degree at most 4p - 1, which 2p
+    nodes integrate exactly: the moments are exact to round-off.  On a rational spline each piece is
+    halved until RATIONAL_NODES nodes on the piece and on its halves agree to RATIONAL_REL of the
+    curve's scale (the integrand is analytic there, so the finer estimate is the better one);
+    `moment_error` is the sum of those differences.
+    """
+
+    degree: int
+    poles: tuple
+    knots: tuple
+    weights: tuple = ()
+
+    def __post_init__(self):
+        p = int(self.degree)
+        poles = tuple(_pt(q) for q in self.poles)
+        knots = tuple(float(k) for k in self.knots)
+        weights = tuple(float(w) for w in self.weights)
+        object.__setattr__(self, "degree", p)
+        object.__setattr__(self, "poles", poles)
+        object.__setattr__(self, "knots", knots)
+        object.__setattr__(self, "weights", weights)
+        n = len(poles)
+        if p < 1 or n < p + 1:
+            raise ValueError(f"a spline of degree {p} needs at least {p + 1} poles, got {n}")
+        if len(knots) != n + p + 1:
+            raise ValueError(f"a spline of {n} poles and degree {p} needs {n + p + 1} knots, got {len(knots)}")
+        k = np.array(knots)
+        if not (np.all(np.diff(k) >= 0) and np.all(np.isfinite(k)) and k[p] < k[n]):
+            raise ValueError("spline knots must be finite, non-decreasing and span a parameter range")
+        if not (np.all(k[:p + 1] == k[0]) and np.all(k[n:] == k[-1])):
+            raise ValueError("spline knots must be clamped (use Spline.from_nurbs)")
+        if weights and (len(weights) != n or not all(w > 0 and math.isfinite(w) for w in weights)):
+            raise ValueError(f"a rational spline needs {n} positive weights, got {weights}")
+        if not np.all(np.isfinite(np.array(poles))):
+            raise ValueError("spline poles must be finite")
+
+    @classmethod
+    def from_nurbs(cls, degree: int, poles, knots, weights=()) -> Spline:
+        """The curve of any NURBS (clamped or not, e.g. a closed periodic one) on its domain
+        [knots[p], knots[n]], clamped by knot insertion; equal weights give a polynomial spline."""
+        p = int(degree)
+        xy = np.asarray(poles, dtype=float).reshape(-1, 2)
+        w = np.asarray(weights, dtype=float) if len(weights) else np.ones(len(xy))
+        if len(w) != len(xy):
+            raise ValueError(f"a rational spline needs {len(xy)} weights, got {len(w)}")
+        k = np.asarray(knots, dtype=float)
+        if len(k) != len(xy) + p + 1:
+            raise ValueError(f"a spline of {len(xy)} poles and degree {p} needs {len(xy) + p + 1} knots, "
+                             f"got {len(k)}")
+        ph = np.column_stack([xy * w[:, None], w])
+        ph, k = _clamped(ph, k, p)
+        wt = ph[:, 2]
+        rational = not np.allclose(wt, wt[0], rtol=1e-15, atol=0)
+        return cls(p, ph[:, :2] / wt[:, None], k, tuple(wt) if rational else ())
+
+    # ------------------------------------------------------------ geometry
+    @property
+    def start(self) -> Point:
+        return self.poles[0]
+
+    @property
+    def end(self) -> Point:
+        return self.poles[-1]
+
+    @property
+    def is_rational(self) -> bool:
+        return bool(self.weights)
+
+    def _homogeneous(self) -> np.ndarray:
+        xy = np.array(self.poles)
+        w = np.array(self.weights) if self.weights else np.ones(len(xy))
+        return np.column_stack([xy * w[:, None], w])
+
+    @cached_property
+    def _pieces(self) -> np.ndarray:
+        """(m, p+1, 3): the curve as rational Bezier pieces in homogeneous form, one per knot span."""
+        p = self.degree
+        ph, k = self._homogeneous(), np.array(self.knots)
+        for u in np.unique(k[p + 1:len(k) - p - 1]):
+            ph, k = _raise_multiplicity(ph, k, p, float(u), p)
+        m = (len(ph) - 1) // p
+        return np.stack([ph[i * p:i * p + p + 1] for i in range(m)])
+
+    def bezier_pieces(self, at_least: int = 1) -> np.ndarray:
+        """(m, p+1, 3) the curve's Bezier pieces, homogeneous (w x, w y, w): one per knot span, halved
+        until there are at least `at_least` of them."""
+        pieces = self._pieces
+        while len(pieces) < at_least:
+            left, right = _bezier_halves(pieces)
+            pieces = np.stack([left, right], axis=1).reshape(-1, *pieces.shape[1:])
+        return pieces
+
+    def with_ends(self, start: Point | None = None, end: Point | None = None) -> Spline:
+        """The spline with its first / last pole moved onto `start` / `end` (closing a small gap in a
+        drawing: the curve moves by at most the distance the pole moves)."""
+        poles = list(self.poles)
+        if start is not None:
+            poles[0] = _pt(start)
+        if end is not None:
+            poles[-1] = _pt(end)
+        return Spline(self.degree, tuple(poles), self.knots, self.weights)
+
+    def reversed(self) -> Spline:
+        k = np.array(self.knots)
+        return Spline(self.degree, self.poles[::-1], tuple((k[0] + k[-1]) - k[::-1]), self.weights[::-1])
+
+    def point_at(self, t: float) -> Point:
+        """The point at the share t (0 .. 1) of the parameter range."""
+        pieces = self._pieces
+        m = len(pieces)
+        x = min(max(float(t), 0.0), 1.0) * m
+        i = min(int(x), m - 1)
+        pts, _ = _bezier_eval(pieces[i:i + 1], np.array([x - i]))
+        return _pt(pts[0, 0])
+
+    @property
+    def length(self) -> float:
+        s, w = _gauss01(2 * self.degree + 8)
+        _, der = _bezier_eval(self._pieces, s)
+        return float(np.sum(np.hypot(der[..., 0], der[..., 1]) * w))
+
+    def flatten(self, max_chord_mm: float = 0.005) -> np.ndarray:
+        """(n, 2) float, mm: points on the curve from start to end; every chord lies within
+        `max_chord_mm` of the curve and the curve within it of its chord (the control-polygon bound
+        of `_hull_off_chord`, halving the pieces until it holds)."""
+        tol = max(float(max_chord_mm), 1e-12 * max(1.0, float(np.abs(np.array(self.poles)).max())))
+        pieces = self._pieces
+        for _ in range(60):
+            ok = _hull_off_chord(pieces) <= tol
+            if ok.all():
+                break
+            left, right = _bezier_halves(pieces[~ok])
+            count = np.where(ok, 1, 2)
+            at = np.concatenate([[0], np.cumsum(count)[:-1]])
+            out = np.empty((int(count.sum()),) + pieces.shape[1:])
+            out[at[ok]] = pieces[ok]
+            out[at[~ok]] = left
+            out[at[~ok] + 1] = right
+            pieces = out
+        q = pieces[..., :2] / pieces[..., 2:]
+        pts = np.vstack([q[:, 0, :], q[-1:, -1, :]])
+        pts[0], pts[-1] = self.start, self.end
+        return pts
+
+    # ------------------------------------------------------------ moments
+    @cached_property
+    def _moments_and_error(self) -> tuple[np.ndarray, np.ndarray]:
+        p = self.degree
+        pieces = self._pieces
+        if not self.is_rational:
+            s, w = _gauss01(2 * p)
+            pts, der = _bezier_eval(pieces, s)
+            return _curve_terms(pts, der, np.broadcast_to(w, pts.shape[:2])), np.zeros(6)
+        size = max(1.0, float(np.abs(np.array(self.poles)).max()))
+        scale = size ** np.array([2, 3, 3, 4, 4, 4], dtype=float)
+        s, w = _gauss01(RATIONAL_NODES)
+        total, error = np.zeros(6), np.zeros(6)
+        todo = [(i, 0.0, 1.0) for i in range(len(pieces))]
+        while todo:
+            nxt = []
+            for i, a, b in todo:
+                piece = pieces[i:i + 1]
+                h = b - a
+                one = _curve_terms(*_bezier_eval(piece, a + h * s), h * w[None, :])
+                mid = 0.5 * (a + b)
+                two = (_curve_terms(*_bezier_eval(piece, a + 0.5 * h * s), 0.5 * h * w[None, :])
+                       + _curve_terms(*_bezier_eval(piece, mid + 0.5 * h * s), 0.5 * h * w[None, :]))
+                diff = np.abs(two - one)
+                if np.all(diff <= RATIONAL_REL * scale * h) or h < 1e-6:
+                    total += two
+                    error += diff
+                else:
+                    nxt += [(i, a, mid), (i, mid, b)]
+            todo = nxt
+        return total, error
+
+    def _terms(self) -> np.ndarray:
+        return self._moments_and_error[0]
+
+    @property
+    def moment_error(self) -> np.ndarray:
+        """(6,) the estimated quadrature error of the terms (zero for a polynomial spline: exact)."""
+        return self._moments_and_error[1]
+
+
+#: Gauss-Legendre nodes per quarter turn of an elliptic arc: its integrands are trigonometric
+#: polynomials of degree <= 4, which 16 nodes over a quarter turn integrate to round-off
+ELLIPSE_NODES = 16
+
+
+@dataclass(frozen=True)
+class EllipseArc:
+    """An elliptic arc: p(t) = center + major cos t + minor sin t for t from t0 to t1 (rad, t0 < t1,
+    t1 - t0 <= 2 pi), mm.  major and minor are the semi-axis vectors, perpendicular, |minor| <= |major|;
+    minor may point either way (an arc clockwise in the plane has it on the clockwise side)."""
+
+    center: Point
+    major: Point
+    minor: Point
+    t0: float
+    t1: float
+
+    def __post_init__(self):
+        for name in ("center", "major", "minor"):
+            object.__setattr__(self, name, _pt(getattr(self, name)))
+        object.__setattr__(self, "t0", float(self.t0))
+        object.__setattr__(self, "t1", float(self.t1))
+        a, b = math.hypot(*self.major), math.hypot(*self.minor)
+        if not (a > 0 and b > 0 and b <= a * (1 + 1e-12)):
+            raise ValueError(f"an ellipse needs 0 < minor <= major semi-axis, got {b} and {a}")
+        if abs(self.major[0] * self.minor[0] + self.major[1] * self.minor[1]) > 1e-9 * a * b:
+            raise ValueError("an ellipse's axes must be perpendicular")
+        if not (0 < self.t1 - self.t0 <= 2 * math.pi + 1e-12):
+            raise ValueError(f"an elliptic arc needs 0 < t1 - t0 <= 2 pi, got {self.t1 - self.t0}")
+
+    @property
+    def sweep(self) -> float:
+        return self.t1 - self.t0
+
+    @property
+    def is_full(self) -> bool:
+        return self.sweep >= 2 * math.pi - 1e-12
+
+    @property
+    def ccw(self) -> bool:
+        """True when t runs counter-clockwise about the centre."""
+        return self.major[0] * self.minor[1] - self.major[1] * self.minor[0] > 0
+
+    def _at(self, t) -> tuple[np.ndarray, np.ndarray]:
+        t = np.asarray(t, dtype=float)
+        c, s = np.cos(t)[..., None], np.sin(t)[..., None]
+        u, v = np.array(self.major), np.array(self.minor)
+        return np.array(self.center) + u * c + v * s, -u * s + v * c
+
+    def point_at(self, t: float) -> Point:
+        """The point at the share t (0 .. 1) of the parameter range."""
+        return _pt(self._at(self.t0 + t * self.sweep)[0])
+
+    @property
+    def start(self) -> Point:
+        return self.point_at(0.0)
+
+    @property
+    def end(self) -> Point:
+        return self.start if self.is_full else self.point_at(1.0)
+
+    def reversed(self) -> EllipseArc:
+        # p(-t) with the minor axis turned over runs the same points backwards
+        return EllipseArc(self.center, self.major, (-self.minor[0], -self.minor[1]), -self.t1, -self.t0)
+
+    def _nodes(self) -> tuple[np.ndarray, np.ndarray]:
+        parts = max(1, math.ceil(self.sweep / (0.5 * math.pi) - 1e-12))
+        s, w = _gauss01(ELLIPSE_NODES)
+        edges = self.t0 + self.sweep * np.arange(parts) / parts
+        h = self.sweep / parts
+        return (edges[:, None] + h * s[None, :]).ravel(), np.tile(h * w, parts)
+
+    @property
+    def length(self) -> float:
+        t, w = self._nodes()
+        _, der = self._at(t)
+        return float(np.sum(np.hypot(der[:, 0], der[:, 1]) * w))
+
+    def flatten(self, max_chord_mm: float = 0.005) -> np.ndarray:
+        """(n, 2) float, mm: points from start to end, every chord within `max_chord_mm` of the arc.
+
+        The ellipse is the unit circle under the linear map [major minor], whose largest stretch is
+        the major semi-axis a: a chord of parameter step h lies within a (1 - cos(h/2)) of the arc."""
+        a = math.hypot(*self.major)
+        tol = max(float(max_chord_mm), 1e-12)
+        step = math.pi if tol >= a else 2.0 * math.acos(1.0 - tol / a)
+        n = max(1, math.ceil(self.sweep / step), math.ceil(4 * self.sweep / (2 * math.pi)))
+        pts, _ = self._at(self.t0 + np.linspace(0.0, 1.0, n + 1) * self.sweep)
+        pts[0], pts[-1] = self.start, self.end
+        return pts
+
+    def _terms(self) -> np.ndarray:
+        t, w = self._nodes()
+        pts, der = self._at(t)
+        return _curve_terms(pts, der, w)
+
+
+Segment = Line | Arc | Spline | EllipseArc
+#: segments that are neither a straight line nor a circular arc
+CURVES = (Spline, EllipseArc)
 
 
 # --------------------------------------------------------------------------
@@ -302,9 +730,10 @@ Segment = Line | Arc
 
 @dataclass(frozen=True)
 class Loop:
-    """A closed chain of Line / Arc segments: the end of each is the start of
-    the next (and the last ends at the first's start) within CLOSE_REL of
-    the loop's size.  Either winding is accepted; `oriented` picks one.
+    """A closed chain of Line / Arc / Spline / EllipseArc segments: the end of
+    each is the start of the next (and the last ends at the first's start)
+    within CLOSE_REL of the loop's size.  Either winding is accepted;
+    `oriented` picks one.
     """
 
     segments: tuple
@@ -315,8 +744,8 @@ class Loop:
         if not segs:
             raise ValueError("a loop needs at least one segment")
         for s in segs:
-            if not isinstance(s, (Line, Arc)):
-                raise TypeError(f"loop segments must be Line or Arc, got {type(s).__name__}")
+            if not isinstance(s, (Line, Arc, Spline, EllipseArc)):
+                raise TypeError(f"loop segments must be Line, Arc, Spline or EllipseArc, got {type(s).__name__}")
         ends = np.array([p for s in segs for p in (s.start, s.end)])
         size = max(1.0, float(np.abs(ends).max()))
         tol = CLOSE_REL * size
@@ -348,7 +777,7 @@ class Loop:
             p = np.array([(s.start[0], s.start[1], s.end[0], s.end[1]) for s in lines])
             total += _line_terms(p[:, 0], p[:, 1], p[:, 2], p[:, 3]).sum(axis=1)
         for s in self.segments:
-            if isinstance(s, Arc):
+            if not isinstance(s, Line):
                 total += s._terms()
         return AreaMoments._from_array(total)
 
@@ -375,6 +804,31 @@ class Loop:
     @property
     def length(self) -> float:
         return sum(s.length for s in self.segments)
+
+    @property
+    def has_curves(self) -> bool:
+        """True if a segment is a spline or an elliptic arc."""
+        return any(isinstance(s, CURVES) for s in self.segments)
+
+    def lines_and_arcs(self, max_chord_mm: float) -> Loop:
+        """This loop with every spline and elliptic arc replaced by the chords of its flattening
+        (each within `max_chord_mm` of the curve); lines and arcs are kept.  For code that reasons
+        about lines and circular arcs only (distances, ray crossings, a polyline in a drawing)."""
+        if not self.has_curves:
+            return self
+        cache = self.__dict__.setdefault("_lines_and_arcs", {})   # the loop is frozen: its flattenings too
+        key = float(max_chord_mm)
+        if key not in cache:
+            out = []
+            for s in self.segments:
+                if isinstance(s, CURVES):
+                    pts = s.flatten(key)
+                    out += [Line(pts[i], pts[i + 1]) for i in range(len(pts) - 1)
+                            if tuple(pts[i]) != tuple(pts[i + 1])]
+                else:
+                    out.append(s)
+            cache[key] = Loop(tuple(out))
+        return cache[key]
 
     def points(self, max_chord_mm: float = 0.005) -> np.ndarray:
         """(n, 2) float, mm: the loop flattened (arcs within `max_chord_mm`

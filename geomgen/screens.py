@@ -58,6 +58,9 @@ PLUG_WALL_METHOD = (
 
 
 # ------------------------------------------------------------------ exact distances
+#: splines and ellipses are measured on their flattening, whose chords lie within this of them, mm
+CURVE_CHORD_MM = 1e-4
+
 def _on_arc(arc: Arc, angle_deg: float) -> bool:
     a0, sweep = arc.start_deg, arc.sweep_deg
     off = (angle_deg - a0) % 360.0 if sweep > 0 else (a0 - angle_deg) % 360.0
@@ -83,8 +86,9 @@ def point_segment_distance(point, segment) -> float:
 
 
 def point_loop_distance(point, loop: Loop) -> float:
-    """Shortest distance from `point` to the outline of a loop, mm (exact); the sign is not given."""
-    return min(point_segment_distance(point, s) for s in loop.segments)
+    """Shortest distance from `point` to the outline of a loop, mm (exact for lines and arcs, within
+    CURVE_CHORD_MM for splines and ellipses); the sign is not given."""
+    return min(point_segment_distance(point, s) for s in loop.lines_and_arcs(CURVE_CHORD_MM).segments)
 
 
 def circle_ligament(center, radius: float, loop: Loop) -> float:

@@ -3,8 +3,9 @@
 A web is a prism: a plane section (the outline minus the bores) swept from
 z = 0 (inner face) to z = thickness (outer face), in the contract's web
 frame (crank axis = Z, pin centre at (0, stroke/2)).  Its mass properties
-are exact for lines and arcs (geomgen.loops), so they serve as the reference
-the CAD solid is checked against.
+are exact for lines and arcs and for the splines and ellipses of a drawing
+(geomgen.loops), so they serve as the reference the CAD solid is checked
+against.
 
 The crankpin bore is part of `bores`: a web's own unbalance is computed with
 its pin bore empty (the crankpin is counted among the rotating parts).
@@ -15,11 +16,12 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
 import shapely
 
 from .dxf_outline import GAP_TOL_MM, read_outline
 from .errors import BadInput
-from .loops import AreaMoments, Line, Loop, circle, prism
+from .loops import CURVES, AreaMoments, Line, Loop, circle, prism
 from .massprops import MassProps
 
 #: a drawn circle whose centre is this close to the pin position (mm) is the pin bore
@@ -28,6 +30,8 @@ PIN_CENTRE_TOL_MM = 1e-3
 PIN_DIAMETER_TOL_MM = 1e-3
 #: chordal deviation of the polygons used for checks and the planner, mm
 POLYGON_CHORD_MM = 0.005
+#: chordal deviation of the flattening that gives a spline's or an ellipse's distance from the axis, mm
+RADIUS_CHORD_MM = 1e-5
 #: the rim may lie at most this many strokes from the crank axis.  A full-circle single-cylinder web
 #: is some 2 to 3 strokes across (common practice), so 20 strokes of radius is far beyond any real
 #: web, yet a drawing in mm read as metres (1000x) always lands past it, and one read as inches
@@ -93,7 +97,16 @@ class WebSection:
 
 
 def _radius_range(seg) -> tuple[float, float]:
-    """(nearest, farthest) distance of a Line or Arc from the origin, mm."""
+    """(nearest, farthest) distance of a segment from the origin, mm: exact for a Line or Arc; for a
+    spline or an elliptic arc within RADIUS_CHORD_MM (from its flattening, whose chords lie within
+    that of the curve)."""
+    if isinstance(seg, CURVES):
+        pts = seg.flatten(RADIUS_CHORD_MM)
+        p0, d = pts[:-1], np.diff(pts, axis=0)
+        span = np.einsum("ij,ij->i", d, d)
+        t = np.clip(-np.einsum("ij,ij->i", p0, d) / np.where(span > 0, span, 1.0), 0.0, 1.0)
+        near = np.hypot(*(p0 + t[:, None] * d).T)
+        return (float(near.min()), float(np.hypot(*pts.T).max()))
     ends = (math.hypot(*seg.start), math.hypot(*seg.end))
     if isinstance(seg, Line):
         (x0, y0), (x1, y1) = seg.start, seg.end
@@ -277,7 +290,8 @@ def outline_web(*, path, thickness: float, density_g_cm3: float, stroke: float, 
     _check_common(thickness=thickness, density_g_cm3=density_g_cm3, where=where.rsplit(".", 1)[0])
     if not pin_bore > 0:
         raise BadInput(f"{where.rsplit('.', 1)[0]}.pin_bore: must be > 0 mm, got {pin_bore}")
-    outline = read_outline(path, units=units, gap_tol=gap_tol, where=where)
+    outline = read_outline(path, units=units, gap_tol=gap_tol, where=where,
+                           gap_key=None if where == "inspect" else "outline_gap")
     source = f"{where} {path}"
     override = "--units" if where == "inspect" else "outline_units"
     check_size_for_engine(outline, stroke=stroke, pin_bore=pin_bore, source=source, override=override)
@@ -325,7 +339,7 @@ def inspect_dxf(path, *, thickness: float, density_g_cm3: float, units: str | No
         return outline_web(path=path, thickness=thickness, density_g_cm3=density_g_cm3, stroke=stroke,
                            pin_bore=pin_bore, units=units, where="inspect").massprops()
     _check_common(thickness=thickness, density_g_cm3=density_g_cm3, where="-")
-    outline = read_outline(path, units=units, where="inspect")
+    outline = read_outline(path, units=units, where="inspect", gap_key=None)
     check_size_plausible(outline, source=f"inspect {path}")
     check_bores(outline.outer, outline.inner, where=f"inspect {path}")
     return WebSection(outline.outer, outline.inner, (math.nan, math.nan), math.nan, float(thickness),

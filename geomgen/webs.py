@@ -20,7 +20,7 @@ def web_section(job, web):
                               where=where)
     return outline_web(path=web.outline, thickness=web.thickness, density_g_cm3=web.density,
                        stroke=job.engine.stroke, pin_bore=web.pin_bore, main_bore=web.main_bore,
-                       units=web.outline_units, where=f"{where} outline")
+                       units=web.outline_units, gap_tol=web.outline_gap, where=f"{where} outline")
 
 
 def limits_of(job) -> Limits:

@@ -10,17 +10,75 @@ import math
 
 import cadquery as cq
 
-from ..loops import Arc, Line, Loop
+from ..loops import Arc, EllipseArc, Line, Loop, Spline
 
 OVERSHOOT = 1.0
 
 
+def spline_edges(seg: Spline, z: float = 0.0) -> list:
+    """The spline as exact edges at height z (mm), one Bezier edge (OpenCascade Geom_BezierCurve, with
+    its weights if rational) per knot span: together the very curve of the drawing's poles, knots and
+    weights.  One edge per span rather than one B-spline edge of all spans: OpenCascade's volume
+    integration (GProp) over a face swept from a many-span B-spline strays by some 1e-4 of the volume
+    (measured on a 16-point fit spline rim), over the faces of its spans it agrees with the area
+    moments to 1e-12.  A spline of one span is halved, so no edge closes on itself."""
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge
+    from OCP.Geom import Geom_BezierCurve
+    from OCP.gp import gp_Pnt
+    from OCP.TColgp import TColgp_Array1OfPnt
+    from OCP.TColStd import TColStd_Array1OfReal
+
+    pieces = seg.bezier_pieces(at_least=2)
+    edges = []
+    for k, piece in enumerate(pieces):
+        xy = piece[:, :2] / piece[:, 2:]
+        if k == 0:
+            xy[0] = seg.start
+        if k == len(pieces) - 1:
+            xy[-1] = seg.end
+        poles = TColgp_Array1OfPnt(1, len(piece))
+        for i, (x, y) in enumerate(xy, start=1):
+            poles.SetValue(i, gp_Pnt(float(x), float(y), z))
+        if seg.is_rational:
+            weights = TColStd_Array1OfReal(1, len(piece))
+            for i, w in enumerate(piece[:, 2], start=1):
+                weights.SetValue(i, float(w))
+            curve = Geom_BezierCurve(poles, weights)
+        else:
+            curve = Geom_BezierCurve(poles)
+        edges.append(cq.Edge(BRepBuilderAPI_MakeEdge(curve).Edge()))
+    return edges
+
+
+def ellipse_edges(seg: EllipseArc, z: float = 0.0) -> list:
+    """The elliptic arc as exact ellipse edges (OpenCascade Geom_Ellipse) of at most a quarter turn
+    each, at height z (mm).  Their frame has X along the major axis and Y along the minor one (Z turned
+    over for a clockwise arc), so an edge's parameter is the arc's own t.  Quarter turns: GProp over
+    the face swept from one closed ellipse edge puts its centre of mass 2.6e-4 mm off (measured on a
+    24 x 12 mm ellipse), over quarter-turn faces it is exact to round-off."""
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge
+    from OCP.Geom import Geom_Ellipse
+    from OCP.gp import gp_Ax2, gp_Dir, gp_Elips, gp_Pnt
+
+    a, b = math.hypot(*seg.major), math.hypot(*seg.minor)
+    frame = gp_Ax2(gp_Pnt(*seg.center, z), gp_Dir(0, 0, 1 if seg.ccw else -1), gp_Dir(seg.major[0], seg.major[1], 0))
+    curve = Geom_Ellipse(gp_Elips(frame, a, b))
+    parts = max(1, math.ceil(seg.sweep / (0.5 * math.pi) - 1e-9))
+    cuts = [seg.t0 + seg.sweep * i / parts for i in range(parts)] + [seg.t1]
+    return [cq.Edge(BRepBuilderAPI_MakeEdge(curve, cuts[i], cuts[i + 1]).Edge()) for i in range(parts)]
+
+
 def loop_wire(loop: Loop, z: float = 0.0):
-    """A cadquery Wire of the loop's exact lines and circular arcs at height z (mm)."""
+    """A cadquery Wire of the loop's exact segments at height z (mm): lines, circular arcs, the spans
+    of splines and ellipse edges."""
     edges = []
     for seg in loop.segments:
         if isinstance(seg, Line):
             edges.append(cq.Edge.makeLine(cq.Vector(*seg.start, z), cq.Vector(*seg.end, z)))
+        elif isinstance(seg, Spline):
+            edges.extend(spline_edges(seg, z))
+        elif isinstance(seg, EllipseArc):
+            edges.extend(ellipse_edges(seg, z))
         elif isinstance(seg, Arc) and abs(seg.sweep_deg) >= 360.0 - 1e-9:
             edges.append(cq.Edge.makeCircle(seg.radius, cq.Vector(*seg.center, z)))
         else:

@@ -29,6 +29,8 @@ from ..massprops import MassProps
 
 #: Gauss-Legendre nodes over t in [-pi/2, pi/2] for the u = a sin t integral
 QUADRATURE_NODES = 48
+#: a spline or elliptic rim is crossed on its flattening, whose chords lie within this of it, mm
+RIM_CHORD_MM = 1e-6
 
 
 @lru_cache(maxsize=4)
@@ -46,22 +48,26 @@ def axes(angle_deg: float) -> tuple[np.ndarray, np.ndarray]:
 def rim_distance(outer: Loop, angle_deg: float, u) -> np.ndarray:
     """s of the outermost crossing of each line {u = const} with the outline, (n,) mm; nan if none.
 
-    outer : the web's rim (Lines and Arcs, exact);  u : (n,) lateral offsets, mm.
+    outer : the web's rim (Lines and Arcs exact; splines and ellipses on chords within RIM_CHORD_MM);
+    u : (n,) lateral offsets, mm.
     """
     e_s, e_u = axes(angle_deg)
     u = np.atleast_1d(np.asarray(u, dtype=float))
     best = np.full(u.shape, -np.inf)
-    for seg in outer.segments:
-        if isinstance(seg, Line):
-            p0, p1 = np.asarray(seg.start), np.asarray(seg.end)
-            s0, s1, u0, u1 = p0 @ e_s, p1 @ e_s, p0 @ e_u, p1 @ e_u
-            if abs(u1 - u0) < 1e-15:
-                continue
-            t = (u - u0) / (u1 - u0)
-            ok = (t >= -1e-12) & (t <= 1 + 1e-12)
-            s = s0 + t * (s1 - s0)
-            best = np.where(ok, np.maximum(best, s), best)
-        elif isinstance(seg, Arc):
+    segments = outer.lines_and_arcs(RIM_CHORD_MM).segments
+    lines = np.array([(*s.start, *s.end) for s in segments if isinstance(s, Line)]).reshape(-1, 4)
+    if len(lines):   # every line at once (a flattened spline has thousands)
+        s0, s1 = lines[:, :2] @ e_s, lines[:, 2:] @ e_s
+        u0, u1 = lines[:, :2] @ e_u, lines[:, 2:] @ e_u
+        keep = np.abs(u1 - u0) >= 1e-15
+        s0, s1, u0, u1 = s0[keep], s1[keep], u0[keep], u1[keep]
+        t = (u[:, None] - u0) / (u1 - u0)
+        ok = (t >= -1e-12) & (t <= 1 + 1e-12)
+        s = np.where(ok, s0 + t * (s1 - s0), -np.inf)
+        if s.shape[1]:
+            best = np.maximum(best, s.max(axis=1))
+    for seg in segments:
+        if isinstance(seg, Arc):
             c = np.asarray(seg.center)
             cs, cu = c @ e_s, c @ e_u
             disc = seg.radius ** 2 - (u - cu) ** 2
