@@ -17,13 +17,22 @@ bore grown by `pin_wall`, minus other bores and existing features grown by
 `min_wall`, minus keep-out zones.  A hole of diameter d fits where its centre
 lies inside the region at least d/2 from its edge.
 
-Holes: rows on a circle about the crank axis, spaced so neighbours keep
-`min_wall`, for every drill of the series and every radius; the fewest holes
-that can reach the need win, then the least mass taken.  The depth (the same
-for every blind hole, so pairs stay mirror images) is solved exactly — the
-unbalance of a hole is affine in its depth — then rounded to `depth_step`.
-Pockets: one kidney centred on the line; its span and depth are solved.
+Holes: rows on circles about the crank axis, spaced so neighbours keep
+`min_wall`, for every drill of the series: each radius alone, and rows stacked
+inward one drill plus one wall apart (so they keep `min_wall` whatever their
+angles) to the last ring the region allows.  A layout's holes are taken best
+lever first, up to MAX_PATTERN; the fewest holes that can reach the need win,
+then the least mass taken.  The depth (the same for every blind hole, so pairs
+stay mirror images) is solved exactly -- the unbalance of a hole is affine in
+its depth -- then rounded to `depth_step`.
+Pockets: one kidney centred on the line, in any band of radii the walls leave;
+its unbalance is a sinusoid of the half-span (largest at 90 deg for the plain
+annular sector), so the span of most unbalance and the span for the need are
+solved, then the depth.
 Plugs: like holes, flush, with their length solved.
+Lightening: balanced sets of four holes, or for a pockets job a pair of kidneys
+mirrored about the Y axis (`_plan_lightened`).
+When nothing reaches the need the refusal names the most the search found.
 """
 
 from __future__ import annotations
@@ -745,6 +754,9 @@ def _plan_pocket(*, region, sampler, axis, need_vec, thickness, web_density, lim
     mass = np.where(usable, a_need * (r2s ** 2 - r1s ** 2), np.inf)
     tries = [(r1s[i], r2s[i], 2.0 * halves[i]) for i in np.argsort(mass, kind="stable")[:POCKET_BANDS]
              if np.isfinite(mass[i])]
+    # the grid keeps a band a cell inside the walls: the best few are also tried half a millimetre out
+    tries += [(r1 - d1, r2 + d2, span) for r1, r2, span in tries[:POCKET_REACH_BANDS]
+              for d1, d2 in ((0.0, RADIUS_STEP), (RADIUS_STEP, 0.0), (RADIUS_STEP, RADIUS_STEP)) if r1 - d1 > 0]
     tries += [(r1, r2, span) for r1, r2, span, along in refined if along >= need - tolerance]
     results = []
     for r1, r2, span_fit in tries:
@@ -1035,10 +1047,19 @@ def _lightening_pockets(*, section, clearance, region, limits, lighten):
     promise.sort()
     most = max((mass(r1, r2, span_fit) for _, r1, r2, span_fit in promise[:POCKET_BANDS]), default=0.0)
     ranked.sort()
-    pairs = []
-    for _wide, _inertia, r1, r2, lo, span_fit in ranked:
-        if len(pairs) >= LIGHTEN_PAIRS:
+    pairs, tried = [], set()
+    # the grid keeps a band a cell inside the walls: each band is first tried half a millimetre out
+    order = [(r1 + d1, r2 + d2, span_fit) for _w, _i, r1, r2, _lo, span_fit in ranked
+             for d1, d2 in ((RADIUS_STEP, RADIUS_STEP), (0.0, RADIUS_STEP), (0.0, 0.0))]
+    for r1, r2, span_fit in order:
+        if len(pairs) >= LIGHTEN_PAIRS or len(tried) >= 4 * POCKET_BANDS:
             break
+        if (r1, r2) in tried or r2 - r1 < MIN_POCKET_WIDTH - 1e-9:
+            continue
+        tried.add((r1, r2))
+        lo = kl.smallest_span(r1, r2)
+        if lo > span_fit:
+            continue
         m_lo, m_fit = mass(r1, r2, lo), mass(r1, r2, span_fit)
         exact = lo + (lighten - m_lo) / (m_fit - m_lo) * (span_fit - lo) if m_fit > m_lo else span_fit
         span = min(math.ceil(max(exact, lo) * 2 - 1e-6) / 2, span_fit)
