@@ -69,7 +69,7 @@ def test_target_beyond_reach_exits_3_with_one_line(tmp_path, kind):
     lines = proc.stderr.strip().splitlines()
     assert len(lines) == 1, proc.stderr
     line = lines[0]
-    m = re.search(rf"{kind} give at most ([0-9.]+) g\*mm", line)
+    m = re.search(rf"the search found at most ([0-9.]+) g\*mm with {kind} ", line)
     assert m, line
     assert 0.0 < float(m.group(1)) <= bound, (m.group(1), bound)      # the reach it names is a true bound's share
     n = re.search(r"needs ([0-9.]+) g\*mm", line)
