@@ -246,7 +246,8 @@ def plug_fits(web, *, fit: str, overspeed_rpm: float) -> list[dict]:
         row = {"web": web.spec.name, "feature": i + 1, "diameter_mm": _num(f.diameter), "length_mm": _num(f.length),
                "fit": fit, "interference_min_um": limits.interference_min_um,
                "web_ring_outer_diameter_mm": _num(2.0 * edge_r), "ring_edge": edge,
-               "contact_pressure_MPa_min": None, "load_N_overspeed": None, "bearing_MPa_overspeed": None, "margin_overspeed": None,
+               "contact_pressure_MPa_min": None, "load_N_overspeed": None, "bearing_MPa_overspeed": None,
+               "margin_overspeed": None,
                "thin": False, "screened": hub.has_elastic}
         if hub.has_elastic:
             from .materials import material as named
