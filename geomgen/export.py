@@ -138,8 +138,11 @@ def density_description(density_g_cm3: float, material: str | None = None) -> st
 
 
 def density_from_description(text: str | None) -> float | None:
-    """The density a product description gives (`density_description`), g/cm^3, or None."""
-    m = _DENSITY_TEXT.search(text or "")
+    """The density a product description written by `density_description` gives, g/cm^3, or None (for
+    any other text: another program's description is not read as a density)."""
+    if not (text or "").startswith("geomgen solid: "):
+        return None
+    m = _DENSITY_TEXT.search(text)
     return float(m.group(1)) if m else None
 
 

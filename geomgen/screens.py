@@ -66,8 +66,9 @@ PLUG_FIT_METHOD = (
     "F = m ω² r without opening on the side towards the crank axis while the pull's mean bearing pressure "
     "F / (diameter × length) stays below p; the margin is p over that bearing pressure at the overspeed, and below "
     "{margin:g} it is thin (common practice). A plug given only as a density is taken as stiff as the web, "
-    "which under-states p. Not included: the bore growing at speed and with heat (steel grows about twice as much "
-    "as tungsten alloy, and a few µm of interference is soon gone), surface finish and what pressing wipes off. "
+    "which under-states p. Not included: the bore growing at speed and with heat (steel grows about twice as "
+    "much as tungsten alloy, from memory, and a few µm of interference is soon gone), surface finish and what "
+    "pressing wipes off. "
     "A thin margin means the retention (staking, welding, a cross pin) must carry the load, not the fit.")
 
 #: below this ratio of the fit's least contact pressure to the plug's bearing pressure at the overspeed the

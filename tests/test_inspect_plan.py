@@ -22,9 +22,10 @@ import shutil
 
 import pytest
 
+from geomgen.cli import main
+
 import plancheck as pc
 from conftest import toml_dumps
-from geomgen.cli import main
 
 pytestmark = pytest.mark.cad
 
