@@ -23,7 +23,7 @@ import pytest
 
 import geomgen
 from geomgen import job as jobmod
-from geomgen import pipeline
+from geomgen import pipeline, report
 from geomgen.cli import main
 from geomgen.errors import BadInput, Infeasible
 from geomgen.screens import plug_fits, plug_warnings
@@ -183,6 +183,9 @@ def test_thin_plug_fit_is_warned_naming_the_fit():
     doc = geomgen.build(job).document
     assert lines[0] in doc["warnings"]
     assert doc["safety"]["plug_fits"][0]["thin"] is True
+    page = report._safety(doc)
+    assert "<h3>Each plug's press fit against its pull</h3>" in page
+    assert '<span class="bad">0.00</span>' in page            # the margin, flagged
 
 
 def test_plug_fit_of_a_web_given_as_a_density_is_not_screened_and_says_so():
