@@ -372,17 +372,22 @@ def trim(job: Job | PathLike | Mapping[str, Any], *, previous: PathLike | Plan |
 
 
 def inspect(path: PathLike, *, thickness: float | str | None = None, density: float | str | None = None,
-            material: str | None = None, units: str | None = None) -> Inspection:
+            material: str | None = None, units: str | None = None, plug_density: float | str | None = None,
+            plug_material: str | None = None) -> Inspection:
     """Mass properties of a web as a file holds it: a DXF outline (give `thickness`, mm or a unit
     string), a STEP (exact B-rep), an STL (mesh) or a job .toml (each web and its features).
 
-    density : g/cm^3 or a unit string, or `material` by name (default steel);  units : "mm" | "in" |
-    "cm" | "m", for a unitless DXF or an STL.  Raises BadInput for a file or option that does not fit.
+    density : g/cm^3 or a unit string, or `material` by name, of the web material (default: what a
+    geomgen file says, else steel);  plug_density / plug_material : the same for every plug (default:
+    what the file says, else ASTM B777 class 3);  units : "mm" | "in" | "cm" | "m", for a unitless DXF
+    or an STL.  A geomgen web STL with its web-<name>.json beside it is weighed whole, body and plugs.
+    Raises BadInput for a file or option that does not fit.
     """
     from .inspect import inspect_file
 
     path = Path(path)
-    report = inspect_file(path, thickness=thickness, density=density, material_name=material, units=units)
+    report = inspect_file(path, thickness=thickness, density=density, material_name=material, units=units,
+                          plug_density=plug_density, plug_material=plug_material)
     doc = report["json"]
     kinds = {".dxf": "dxf", ".step": "step", ".stp": "step", ".stl": "stl", ".toml": "job"}
     kind = kinds[path.suffix.lower()]

@@ -45,8 +45,13 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("file", metavar="FILE", help=".dxf (needs --thickness), .step/.stp, .stl, or a job .toml")
     p.add_argument("--thickness", help="web thickness for a DXF outline, mm or a unit string")
     group = p.add_mutually_exclusive_group()
-    group.add_argument("--density", help="g/cm^3 or a unit string (default: steel, 7.85)")
-    group.add_argument("--material", help="a material name, e.g. steel, W-alloy-class-3")
+    group.add_argument("--density", help="web material, g/cm^3 or a unit string (default: what a geomgen file "
+                                         "says, else steel, 7.85)")
+    group.add_argument("--material", help="web material by name, e.g. steel, cast-iron")
+    group = p.add_mutually_exclusive_group()
+    group.add_argument("--plug-density", help="every plug, g/cm^3 or a unit string (default: what a geomgen file "
+                                              "says, else W-alloy-class-3)")
+    group.add_argument("--plug-material", help="every plug by material name, e.g. W-alloy-class-2")
     p.add_argument("--units", choices=("mm", "in", "cm", "m"), help="unit of a unitless DXF or of an STL")
     p.add_argument("--json", action="store_true", help="print JSON instead of a table")
 
@@ -88,7 +93,7 @@ def _cmd_study(args) -> int:
 
 def _cmd_inspect(args) -> int:
     found = api.inspect(Path(args.file), thickness=args.thickness, density=args.density, material=args.material,
-                        units=args.units)
+                        units=args.units, plug_density=args.plug_density, plug_material=args.plug_material)
     if args.json:
         print(json.dumps(found.document, indent=2, sort_keys=True))
     else:

@@ -8,9 +8,17 @@ STEP: AP214, millimetres, one named solid per body/plug, body first, each
 its own product with its placement built into its geometry ("body",
 "plug-1", ... in a web file; "web-a body", "web-a plug-1", ... in
 crank.step, names from geomgen.solid); a header naming the file and geomgen
-(not the kernel's defaults).  The
+(not the kernel's defaults).  Each product's description (the third field of
+its PRODUCT entity, free text a CAD program shows or ignores) says what the
+solid is made of, e.g. "geomgen solid: cast-iron, density 7.2 g/cm^3", so that
+`geomgen inspect` weighs it as planned.  The
 schema and unit are process-wide settings of OpenCascade, so each export sets
 them and puts the previous values back.
+
+Beside them `web_sidecar` writes web-<name>.json: the density and material of
+the body and of each plug, each plug's axis (to tell the pieces of the plugs
+STL apart) and the sha256 of the files it describes, since an STL carries no
+material at all.
 
 STL: binary, one file for the body and one for all plugs.  The shape's old
 triangulation is cleared first (a shape keeps its first mesh), the mesh is
@@ -26,7 +34,10 @@ volume.  A mesh that fails that check goes through trimesh's general repair
 
 from __future__ import annotations
 
+import hashlib
+import json
 import os
+import re
 import tempfile
 from pathlib import Path
 
@@ -115,12 +126,47 @@ def _set_header(writer, *, file_name: str, description: str) -> None:
     header.SetDescriptionValue(1, TCollection_HAsciiString(description))
 
 
+#: how a product's description gives its solid's density: "density 7.2 g/cm^3" (the number as Python's repr
+#: writes a float, so it reads back to the same double)
+_DENSITY_TEXT = re.compile(r"\bdensity ([0-9][0-9.]*(?:[eE][-+]?[0-9]+)?) g/cm\^3")
+
+
+def density_description(density_g_cm3: float, material: str | None = None) -> str:
+    """The product description of a solid of this density: "geomgen solid: steel, density 7.85 g/cm^3"."""
+    what = f"{material}, " if material else ""
+    return f"geomgen solid: {what}density {float(density_g_cm3)!r} g/cm^3"
+
+
+def density_from_description(text: str | None) -> float | None:
+    """The density a product description written by `density_description` gives, g/cm^3, or None (for
+    any other text: another program's description is not read as a density)."""
+    if not (text or "").startswith("geomgen solid: "):
+        return None
+    m = _DENSITY_TEXT.search(text)
+    return float(m.group(1)) if m else None
+
+
+def _describe_products(writer, descriptions: dict[str, str]) -> None:
+    """Set the description of each PRODUCT whose name is in `descriptions` (after Transfer, before Write)."""
+    from OCP.StepBasic import StepBasic_Product
+    from OCP.TCollection import TCollection_HAsciiString
+
+    model = writer.ChangeWriter().Model()
+    for i in range(1, model.NbEntities() + 1):
+        entity = model.Value(i)
+        if isinstance(entity, StepBasic_Product):
+            text = descriptions.get(entity.Name().ToCString())
+            if text is not None:
+                entity.SetDescription(TCollection_HAsciiString(text))
+
+
 def write_step(solids, path, *, description: str | None = None) -> Path:
     """Write named solids to one STEP file.
 
-    solids : sequence of (name, shape) (cadquery Shape or TopoDS_Shape), in
-             the order wanted in the file (body first); each becomes its own
-             product, at the place its shape says
+    solids : sequence of (name, shape) or (name, shape, density g/cm^3) or (name, shape, density, material
+             name or None) (shape a cadquery Shape or TopoDS_Shape), in the order wanted in the file (body
+             first); each becomes its own product, at the place its shape says, and a density becomes the
+             product's description (`density_description`)
     path : the file to write
     description : FILE_DESCRIPTION text; default "geomgen <stem>: <the solids' names>"
     """
@@ -132,10 +178,12 @@ def write_step(solids, path, *, description: str | None = None) -> Path:
     from OCP.TDocStd import TDocStd_Document
     from OCP.XCAFDoc import XCAFDoc_DocumentTool
 
-    solids = list(solids)
+    solids = [tuple(s) for s in solids]
+    products = {str(s[0]): density_description(s[2], s[3] if len(s) > 3 else None)
+                for s in solids if len(s) > 2 and s[2] is not None}
     doc = TDocStd_Document(TCollection_ExtendedString("XmlOcaf"))
     tool = XCAFDoc_DocumentTool.ShapeTool_s(doc.Main())
-    for (name, _), shape in zip(solids, _standalone([s for _, s in solids])):
+    for name, shape in zip([s[0] for s in solids], _standalone([s[1] for s in solids])):
         label = tool.AddShape(shape, False)
         TDataStd_Name.Set_s(label, TCollection_ExtendedString(str(name)))
     path = Path(path)
@@ -144,8 +192,9 @@ def write_step(solids, path, *, description: str | None = None) -> Path:
         writer.SetNameMode(True)
         if not writer.Transfer(doc, STEPControl_AsIs):
             raise VerificationFailed(f"{path.name}: the STEP writer refused the shapes")
+        _describe_products(writer, products)
         if description is None:
-            names = [str(n) for n, _ in solids]
+            names = [str(s[0]) for s in solids]
             description = f"geomgen {path.stem}: " + ", ".join(names[:8]) + (", ..." if len(names) > 8 else "")
         _set_header(writer, file_name=path.name, description=description)
         status = writer.Write(str(path))
@@ -179,6 +228,28 @@ def step_header(path) -> dict:
             "preprocessor_version": text(h.PreprocessorVersion()),
             "originating_system": text(h.OriginatingSystem()), "authorisation": text(h.Authorisation()),
             "description": [text(h.DescriptionValue(i)) for i in range(1, h.NbDescription() + 1)]}
+
+
+def step_product_descriptions(path) -> dict[str, str]:
+    """{product name: its description} of a STEP file (empty descriptions left out)."""
+    from OCP.IFSelect import IFSelect_RetDone
+    from OCP.StepBasic import StepBasic_Product
+    from OCP.STEPControl import STEPControl_Reader
+
+    from .errors import BadInput
+
+    reader = STEPControl_Reader()
+    if reader.ReadFile(str(path)) != IFSelect_RetDone:
+        raise BadInput(f"{path}: not a readable STEP file")
+    model = reader.StepModel()
+    out = {}
+    for i in range(1, model.NbEntities() + 1):
+        entity = model.Value(i)
+        if isinstance(entity, StepBasic_Product) and entity.Description() is not None:
+            text = entity.Description().ToCString()
+            if text:
+                out[entity.Name().ToCString()] = text
+    return out
 
 
 def read_step(path) -> list[tuple[str, object]]:
@@ -392,13 +463,23 @@ def write_stl(shapes, path, *, tolerance: float = STL_TOLERANCE_MM,
     return path
 
 
+def web_step_solids(web, body_material: str | None = None) -> list[tuple]:
+    """(name, shape, density, material) of every solid of a WebSolid, for `write_step`: the body of
+    `body_material` (a name, or None when the job gives a density), each plug of its feature's material."""
+    out = [(web.solids()[0][0], web.body, web.density_g_cm3, body_material)]
+    for p in web.plugs:
+        out.append((p.name, p.shape, p.density_g_cm3, getattr(web.features[p.index], "material", None)))
+    return out
+
+
 def export_web(web, folder, *, tolerance: float = STL_TOLERANCE_MM,
-               angular_tolerance: float = STL_ANGULAR_RAD) -> dict[str, Path]:
+               angular_tolerance: float = STL_ANGULAR_RAD, body_material: str | None = None) -> dict[str, Path]:
     """Write web-<name>.step, web-<name>.stl and (with plugs) web-<name>-plugs.stl
-    into `folder`; returns {"step": path, "stl": path, "plugs_stl": path?}."""
+    into `folder`; returns {"step": path, "stl": path, "plugs_stl": path?}.
+    body_material : the web's material name for the STEP's product description (its density is the solid's)."""
     folder = Path(folder)
     stem = f"web-{web.name}"
-    out = {"step": write_step([(n, s) for n, s, _ in web.solids()], folder / f"{stem}.step",
+    out = {"step": write_step(web_step_solids(web, body_material), folder / f"{stem}.step",
                               description=f"geomgen web {web.name}: body and plugs in the web frame"),
            "stl": write_stl(web.body, folder / f"{stem}.stl", tolerance=tolerance,
                             angular_tolerance=angular_tolerance)}
@@ -410,6 +491,47 @@ def export_web(web, folder, *, tolerance: float = STL_TOLERANCE_MM,
 
 def write_crank_step(solids, path) -> Path:
     """crank.step from `solid.crank_assembly` output: (name, shape, density),
-    every body and plug of both webs its own named solid, in the crank frame."""
-    return write_step([(n, s) for n, s, _ in solids], path,
+    every body and plug of both webs its own named solid, in the crank frame,
+    each product's description giving its density."""
+    return write_step(list(solids), path,
                       description="geomgen crank: both webs in the crank frame, the frame of web a")
+
+
+# ------------------------------------------------------------------ web-<name>.json
+#: what a web's sidecar file says it is, on its first key
+SIDECAR_WHAT = ("geomgen: the materials of web-{name}.step and its STL files, for `geomgen inspect`; "
+                "the sha256 of each file it describes")
+
+
+def sidecar_name(web_name: str) -> str:
+    return f"web-{web_name}.json"
+
+
+def web_sidecar(web, *, body_material: str | None, files: dict[str, bytes]) -> bytes:
+    """web-<name>.json of a WebSolid: the body's and each plug's material and density (g/cm^3, exact),
+    each plug's axis (x, y mm, web frame), which file holds what, and the sha256 of each of them.
+
+    files : {file name: bytes} of the run; the web's web-<name>.step, .stl and -plugs.stl are looked up
+    in it.  Same web, same files, same bytes (sorted keys)."""
+    from . import __version__
+
+    stem = f"web-{web.name}"
+    names = [f"{stem}.step", f"{stem}.stl"] + ([f"{stem}-plugs.stl"] if web.plugs else [])
+    doc = {
+        "what": SIDECAR_WHAT.format(name=web.name),
+        "geomgen_version": __version__,
+        "web": web.name,
+        "units": {"length": "mm", "density": "g/cm^3"},
+        "frame": "crank axis = Z through the origin, crankpin on +Y; z from 0 (inner face) to the thickness",
+        "step": f"{stem}.step",
+        "stl": f"{stem}.stl",
+        "plugs_stl": f"{stem}-plugs.stl" if web.plugs else None,
+        "body": {"solid": web.solids()[0][0], "material": body_material, "density_g_cm3": web.density_g_cm3},
+        "plugs": [{"solid": p.name, "feature": p.index + 1, "x_mm": web.features[p.index].x,
+                   "y_mm": web.features[p.index].y, "diameter_mm": web.features[p.index].diameter,
+                   "length_mm": web.features[p.index].length,
+                   "material": getattr(web.features[p.index], "material", None), "density_g_cm3": p.density_g_cm3}
+                  for p in web.plugs],
+        "sha256": {n: hashlib.sha256(files[n]).hexdigest() for n in names if n in files},
+    }
+    return (json.dumps(doc, indent=2, sort_keys=True) + "\n").encode()

@@ -148,6 +148,14 @@ class WebSpec:
         return self.material.density
 
 
+#: the shortest plug a press fit holds square, mm, and the least length / diameter: a plug shorter than
+#: about its diameter cocks as it is pressed and is held on too little length (common practice: a
+#: pressed plug or dowel is given an engagement of 0.5 to 1 diameter at least, and a few millimetres
+#: at the very least; geomgen takes 5 mm and 0.75, the middle of that band)
+PLUG_MIN_LENGTH_MM = 5.0
+PLUG_MIN_LENGTH_RATIO = 0.75
+
+
 @dataclass(frozen=True)
 class Correction:
     """What the shop may do to reach the target."""
@@ -167,6 +175,8 @@ class Correction:
     bf_tolerance_percent: float = 0.5      # |deviation| allowed, balance-factor percent (0.5 = +-0.5 %)
     iso_grade: float = 6.3                 # ISO 21940-11 G-grade, mm/s
     plug_fit: str = "H7/p6"                # ISO 286 bore/plug fit of heavy-metal plugs
+    plug_min_length: float = PLUG_MIN_LENGTH_MM        # mm: no plug shorter is planned; a shorter one is warned
+    plug_min_length_ratio: float = PLUG_MIN_LENGTH_RATIO  # length / diameter, the same
 
 
 @dataclass(frozen=True)
@@ -212,7 +222,7 @@ _WEB = {"diameter", "outline", "outline_units", "outline_gap", "thickness", "mat
 _WEBS = _WEB | {"name", "share"}
 _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
                "plug_material", "lighten", "point_angle", "depth_step", "bf_tolerance_percent",
-               "tolerance_points", "iso_grade", "plug_fit"}
+               "tolerance_points", "iso_grade", "plug_fit", "plug_min_length", "plug_min_length_ratio"}
 _OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step", "crank_gap"}
 #: the unit a job number is held in, by kind (the README's "The job file")
 _UNIT_NAMES = {"length": "mm", "mass": "g", "speed": "rpm", "angle": "deg", "density": "g/cm^3"}
@@ -522,6 +532,9 @@ def _correction(data) -> Correction:
         bf_tolerance_percent=_bf_tolerance(t),
         iso_grade=_number(t, "iso_grade", w, "dimensionless", default=6.3, lo=0.0, lo_open=True, hi=4000.0),
         plug_fit=check_fit(t.get("plug_fit", DEFAULT_FIT), "correction.plug_fit"),
+        plug_min_length=_number(t, "plug_min_length", w, "length", default=PLUG_MIN_LENGTH_MM, lo=0.0, hi=200.0),
+        plug_min_length_ratio=_number(t, "plug_min_length_ratio", w, "dimensionless",
+                                      default=PLUG_MIN_LENGTH_RATIO, lo=0.0, hi=10.0),
     )
 
 

@@ -92,7 +92,7 @@ def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
     import dataclasses
     import shutil
 
-    from .export import export_web, write_crank_step, write_step
+    from .export import export_web, web_step_solids, write_crank_step, write_step
     from .solid import build_web, crank_assembly
     from .verify import verify_web
 
@@ -103,7 +103,7 @@ def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
         if twin is not None:
             solid = dataclasses.replace(solids[twin], name=w.spec.name)
             stem_old, stem = f"web-{webs[twin].spec.name}", f"web-{w.spec.name}"
-            write_step([(n, s) for n, s, _ in solid.solids()], folder / f"{stem}.step")
+            write_step(web_step_solids(solid, body_material(w.spec)), folder / f"{stem}.step")
             files = [f"{stem}.step"]
             for name in out[twin]["files"]:
                 if name.endswith(".stl"):
@@ -116,10 +116,12 @@ def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
             solid = build_web(w.section, w.all_features, name=w.spec.name, min_wall=job.correction.min_wall,
                               pin_wall=job.correction.pin_wall, existing=len(w.existing))
             paths = export_web(solid, folder, tolerance=job.output.stl_tolerance,
-                               angular_tolerance=job.output.stl_angular_tolerance)
+                               angular_tolerance=job.output.stl_angular_tolerance,
+                               body_material=body_material(w.spec))
             v = verify_web(solid, w.plan.predicted, paths, tolerance=job.output.stl_tolerance)
             v["files"] = sorted(p.name for p in paths.values())
             v["wall_warnings"] = solid.wall_warnings
+        v["solid"] = solid
         out.append(v)
         solids.append(solid)
         built.append(w)
@@ -128,12 +130,28 @@ def build_and_verify(job, webs: list[WebWork], folder: Path) -> list[dict]:
     return out
 
 
+def body_material(spec) -> str | None:
+    """The name of a job web's material as the STEP and web-<name>.json give it; None for a web given
+    as a density (its density alone is written)."""
+    from .materials import MATERIALS
+
+    return spec.material.name if spec.material.name in MATERIALS else None
+
+
 def solid_files(job, webs: list[WebWork]) -> tuple[list[dict], dict[str, bytes]]:
     """`build_and_verify` in a private temporary folder: (one verification dict per web,
-    {file name: bytes} of every STEP and STL).  The folder is gone when this returns."""
+    {file name: bytes} of every STEP and STL, and each web's web-<name>.json, which says what they are
+    made of).  The folder is gone when this returns."""
+    from .export import sidecar_name, web_sidecar
+
     with tempfile.TemporaryDirectory(prefix="geomgen-solids-") as tmp:
         verified = build_and_verify(job, webs, Path(tmp))
         files = {p.name: p.read_bytes() for p in sorted(Path(tmp).iterdir())}
+    for w, v in zip(webs, verified):
+        solid = v.pop("solid")
+        name = sidecar_name(w.spec.name)
+        files[name] = web_sidecar(solid, body_material=body_material(w.spec), files=files)
+        v["files"] = sorted([*v["files"], name])
     return verified, files
 
 

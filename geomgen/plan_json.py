@@ -23,6 +23,7 @@ from .features import feature_from_table, feature_massprops, feature_to_table
 from .massprops import MassProps
 from .rounding import fine, num, vec
 from .safety import safety_figures
+from .screens import plug_warnings
 from .trimming import job_fingerprint, trim_figures
 
 CAUTIONS = (
@@ -126,6 +127,9 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
                        "plug_material": job.correction.plug_material.name,
                        "plug_density_g_cm3": num(job.correction.plug_material.density),
                        "lighten_g": num(job.correction.lighten),
+                       "plug_fit": job.correction.plug_fit,
+                       "plug_min_length_mm": num(job.correction.plug_min_length),
+                       "plug_min_length_ratio": num(job.correction.plug_min_length_ratio),
                        "bf_tolerance_percent": num(job.correction.bf_tolerance_percent)},
         "webs": doc_webs,
         "crank": crank_figures(job, webs, exact),
@@ -145,7 +149,7 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
             f"the crank's deviation from target, {deviation:.1f} g*mm, is more than the "
             f"{iso['permissible_residual_gmm']:.1f} g*mm ISO 21940-11 G{iso['grade_mm_s']:g} permits for this rotor "
             "at max_rpm: tighten bf_tolerance_percent or choose the grade you mean")
-    doc["warnings"] = list(job.warnings) + walls + doc["crank"]["warnings"] + \
+    doc["warnings"] = list(job.warnings) + walls + plug_warnings(job, webs) + doc["crank"]["warnings"] + \
         list((trim or {}).get("warnings", ()))
     if trim is not None:
         doc["trim"] = trim_figures(job, webs, exact, trim)

@@ -46,6 +46,7 @@ import shapely
 
 from .errors import BadInput, Infeasible
 from .features import Hole, Plug, Pocket, feature_massprops, footprint_polygon
+from .kinds.plug import least_plug_length
 from .massprops import MassProps
 from .materials import MATERIALS
 
@@ -78,6 +79,8 @@ class Limits:
     point_angle: float
     depth_step: float
     corner_radius: float = 3.0
+    plug_min_length: float = 0.0      # mm, the shortest plug planned (job correction.plug_min_length)
+    plug_min_length_ratio: float = 0.0  # the least plug length / diameter (correction.plug_min_length_ratio)
 
 
 @dataclass(frozen=True)
@@ -438,6 +441,12 @@ def _plan_rows(*, kind, sampler, axis, need_vec, thickness, web_density, plug_de
             0.5 * d / math.tan(math.radians(0.5 * limits.point_angle))
         hi = min(blind_max - point, limits.max_depth) if kind == "hole" else blind_max
         lo = MIN_HOLE_DEPTH
+        if kind == "plug":
+            # a plug shorter than the job's rule is not held by its press fit: not a candidate
+            lo = max(lo, least_plug_length(d, min_length=limits.plug_min_length,
+                                           min_ratio=limits.plug_min_length_ratio))
+            if lo > thickness + 1e-9:
+                continue
         has_blind = hi >= lo
         if not has_blind and not limits.through:
             continue
@@ -930,10 +939,13 @@ def _raise_infeasible(name, need, reaches, limits, methods, section, existing, t
                 break
             except Infeasible:
                 continue
+    plugs = (f", plugs no shorter than correction.plug_min_length = {limits.plug_min_length:g} mm and "
+             f"correction.plug_min_length_ratio = {limits.plug_min_length_ratio:g} diameters"
+             if "plugs" in methods else "")
     raise Infeasible(f"web {name}: needs {need:.0f} g*mm of correction but the search found at most "
                      f"{', '.join(parts)} within "
                      f"min_wall = {limits.min_wall:g} mm, pin_wall = {limits.pin_wall:g} mm and max_depth = "
-                     f"{limits.max_depth:g} mm{hint}")
+                     f"{limits.max_depth:g} mm{plugs}{hint}")
 
 
 # ------------------------------------------------------------------ lightening

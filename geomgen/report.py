@@ -445,6 +445,24 @@ def _safety(doc: dict) -> str:
                            f"at {_n(s['overspeed_rpm'], 0)} rpm (MPa)"],
                           rows, left=2))
         out.append(f'<p class="note">{_e(s["plug_wall_method"])}</p>')
+    if s.get("plug_fits"):
+        out.append("<h3>Each plug's press fit against its pull</h3>")
+
+        def margin(p):
+            if p["margin_overspeed"] is None:
+                return "not screened" if not p["screened"] else "–"
+            text = _n(p["margin_overspeed"], 2)
+            return f'<span class="bad">{text}</span>' if p["thin"] else text
+
+        rows = [[_e(p["web"]), str(p["feature"]), _e(p["fit"]), str(p["interference_min_um"]),
+                 f"{_n(p['web_ring_outer_diameter_mm'], 2)} ({_e(p['ring_edge'])})",
+                 "–" if p["contact_pressure_MPa_min"] is None else _n(p["contact_pressure_MPa_min"], 1),
+                 "–" if p["bearing_MPa_overspeed"] is None else _n(p["bearing_MPa_overspeed"], 1), margin(p)]
+                for p in s["plug_fits"]]
+        out.append(_table(["web", "feature", "fit", "least interference (µm)", "web as a ring, outer diameter (mm)",
+                           "least contact pressure (MPa)", f"bearing at {_n(s['overspeed_rpm'], 0)} rpm (MPa)",
+                           "margin"], rows, left=3))
+        out.append(f'<p class="note">{_e(s["plug_fit_method"])}</p>')
     if "screen_caution" in s:
         out.append(f'<p class="note"><b>{_e(s["screen_caution"])}</b></p>')
     return "".join(out)

@@ -1,5 +1,6 @@
 """Screens of what holds a pressed-up crank together: the crankpin press fit, the
-wall left around the pin bore, and the wall that carries each plug at speed.
+wall left around the pin bore, the wall that carries each plug at speed, and
+whether each plug's own press fit stays closed under its pull.
 
 Every figure here is a screen, not a rating.  It says where to look harder; it
 never clears a part.  The formulas live in geomgen.loads; this module measures
@@ -21,6 +22,7 @@ import math
 
 import shapely
 
+from .fits import fit_limits
 from .kinds import cylinder_massprops
 from .loads import (
     bearing_stress_mpa,
@@ -55,6 +57,24 @@ PLUG_WALL_METHOD = (
     "bore's projected area; wall shear = F / (2 × wall × length), two planes torn out towards the rim, as for a "
     "pin near the edge of a plate. Mean stresses only: the peak at the bore is higher, and the retention "
     "(press fit, staking, welding or a cross pin) must hold the plug in its bore in the first place.")
+
+
+PLUG_FIT_METHOD = (
+    "Each plug's ISO 286 fit at its least interference (the smallest plug in the largest bore) gives the least "
+    "contact pressure p (Lamé, as for the crankpin: the plug a solid pin, the web a ring around the bore out to "
+    "the nearest free edge — rim, bore or other feature — which under-states p). The fit holds the plug's pull "
+    "F = m ω² r without opening on the side towards the crank axis while the pull's mean bearing pressure "
+    "F / (diameter × length) stays below p; the margin is p over that bearing pressure at the overspeed, and below "
+    "{margin:g} it is thin (common practice). A plug given only as a density is taken as stiff as the web, "
+    "which under-states p. Not included: the bore growing at speed and with heat (steel grows about twice as "
+    "much as tungsten alloy, from memory, and a few µm of interference is soon gone), surface finish and what "
+    "pressing wipes off. "
+    "A thin margin means the retention (staking, welding, a cross pin) must carry the load, not the fit.")
+
+#: below this ratio of the fit's least contact pressure to the plug's bearing pressure at the overspeed the
+#: fit is reported as thin (common practice: a joint that must stay closed is given a factor of about 2 on
+#: the load that would open it)
+PLUG_FIT_MARGIN = 2.0
 
 
 # ------------------------------------------------------------------ exact distances
@@ -204,6 +224,97 @@ def plug_walls(web, *, max_rpm: float, overspeed_rpm: float) -> list[dict]:
     return rows
 
 
+def _plug_edge(web, i: int, f) -> tuple[float, str]:
+    """(distance, what) from plug `i`'s centre to the nearest free edge around it: the rim, a bore of the
+    section or another feature's outline, mm."""
+    centre = (f.x, f.y)
+    best = (point_loop_distance(centre, web.section.outer), "rim")
+    for bore in web.section.bores:
+        best = min(best, (point_loop_distance(centre, bore), "pin bore" if _is_pin_bore(bore, web.section)
+                          else "bore"))
+    for j, other in enumerate(web.all_features):
+        if j != i:
+            best = min(best, (point_loop_distance(centre, other.footprint()), f"feature {j + 1}"))
+    return best
+
+
+def plug_fits(web, *, fit: str, overspeed_rpm: float) -> list[dict]:
+    """Each plug of one web: its fit's least contact pressure against the bearing pressure of its pull at
+    the overspeed (PLUG_FIT_METHOD)."""
+    rows = []
+    hub = web.spec.material
+    for i, f in enumerate(web.all_features):
+        if not f.fills:
+            continue
+        limits = fit_limits(fit, f.diameter, f"web {web.spec.name} feature {i + 1}.diameter")
+        edge_r, edge = _plug_edge(web, i, f)
+        row = {"web": web.spec.name, "feature": i + 1, "diameter_mm": _num(f.diameter), "length_mm": _num(f.length),
+               "fit": fit, "interference_min_um": limits.interference_min_um,
+               "web_ring_outer_diameter_mm": _num(2.0 * edge_r), "ring_edge": edge,
+               "contact_pressure_MPa_min": None, "load_N_overspeed": None, "bearing_MPa_overspeed": None,
+               "margin_overspeed": None,
+               "thin": False, "screened": hub.has_elastic}
+        if hub.has_elastic:
+            from .materials import material as named
+
+            plug = named(f.material, "plug.material") if f.material is not None else hub
+            plug = plug if plug.has_elastic else hub
+            interference = max(limits.interference_min_um, 0) / 1000.0
+            pressure = 0.0
+            if interference > 0 and 2.0 * edge_r > f.diameter:
+                pressure = press_fit_pressure_mpa(
+                    interference_mm=interference, diameter_mm=f.diameter, hub_outer_diameter_mm=2.0 * edge_r,
+                    hub_e_mpa=hub.youngs_modulus_gpa * 1e3, hub_nu=hub.poisson_ratio,
+                    pin_e_mpa=plug.youngs_modulus_gpa * 1e3, pin_nu=plug.poisson_ratio)
+            load = plug_load_n(mass_g=f.plug_mass_g(), radius_mm=math.hypot(f.x, f.y), rpm=overspeed_rpm)
+            bearing = bearing_stress_mpa(load_n=load, diameter_mm=f.diameter, length_mm=f.length)
+            margin = pressure / bearing if bearing > 0 else math.inf
+            row.update(contact_pressure_MPa_min=_num(pressure), load_N_overspeed=_num(load),
+                       bearing_MPa_overspeed=_num(bearing), margin_overspeed=None if math.isinf(margin) else
+                       _num(margin), thin=bool(margin < PLUG_FIT_MARGIN))
+        rows.append(row)
+    return rows
+
+
+def plug_warnings(job, webs) -> list[str]:
+    """Warnings about the plugs of a plan: a plug shorter than the job's rule (naming the key; the planner
+    never plans one, so these are the web's own, hand-placed or from an earlier plan), a fit whose margin
+    against the pull at the overspeed is thin, and a web whose fit cannot be screened."""
+    c = job.correction
+    over = job.engine.max_rpm * job.overspeed
+    out = []
+    for w in webs:
+        for i, f in enumerate(w.all_features):
+            if f.fills:
+                short = f.length_shortfall(min_length=c.plug_min_length, min_ratio=c.plug_min_length_ratio)
+                if short is not None:
+                    out.append(f"web {w.spec.name} feature {i + 1} ({f.label()}): {short}; a press fit that short "
+                               "may not hold it square (modelled as it is; a longer plug or another retention)")
+        rows = plug_fits(w, fit=c.plug_fit, overspeed_rpm=over)
+        if rows and not rows[0]["screened"]:
+            out.append(f"web {w.spec.name}: its plugs' press fit is not screened: the web is given as a density "
+                       f"only; name its material (one of the materials geomgen knows) to have it screened")
+        thin = [r for r in rows if r["thin"]]
+        if thin:
+            worst = min(thin, key=lambda r: r["margin_overspeed"])
+            which = ", ".join(str(r["feature"]) for r in thin)
+            least = worst["interference_min_um"] / 1000.0
+            if least > 0:
+                held = (f"at its least interference ({least:.3f} mm) it presses at "
+                        f"{worst['contact_pressure_MPa_min']:.3g} MPa")
+            elif least == 0:
+                held = "at its limits it is line to line, pressing at 0 MPa"
+            else:
+                held = f"at its limits it can be loose ({-least:.3f} mm clearance), pressing at 0 MPa"
+            out.append(f"web {w.spec.name}: the {c.plug_fit} press fit of plug feature(s) {which} is thin against "
+                       f"the pull at the {over:.0f} rpm overspeed: for feature {worst['feature']} {held} against "
+                       f"the {worst['bearing_MPa_overspeed']:.3g} MPa bearing pressure of its "
+                       f"{worst['load_N_overspeed'] / 1000:.3g} kN pull, margin {worst['margin_overspeed']:.2f}, "
+                       f"below {PLUG_FIT_MARGIN:g} (correction.plug_fit): a tighter fit, more wall around it, or a "
+                       "retention (staking, welding, a cross pin) rated for the load")
+    return out
+
+
 def screen_figures(job, webs) -> dict:
     """JSON-ready screens of a plan: press fit, pin-bore ligament, plug walls.
 
@@ -218,5 +329,7 @@ def screen_figures(job, webs) -> dict:
         "pin_ligament_method": LIGAMENT_METHOD,
         "plug_walls": [row for w in webs for row in plug_walls(w, max_rpm=job.engine.max_rpm, overspeed_rpm=over)],
         "plug_wall_method": PLUG_WALL_METHOD,
+        "plug_fits": [row for w in webs for row in plug_fits(w, fit=job.correction.plug_fit, overspeed_rpm=over)],
+        "plug_fit_method": PLUG_FIT_METHOD.format(margin=PLUG_FIT_MARGIN),
         "screen_caution": CAUTION,
     }

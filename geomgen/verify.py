@@ -140,18 +140,27 @@ def mesh_massprops(stl_path, density_g_cm3: float) -> MassProps:
     return _mesh_props(_load_volume(stl_path), density_g_cm3)
 
 
+def mesh_plugs_from_file(plugs_stl, plugs) -> MassProps:
+    """The plugs of a web from their STL file, by trimesh: each connected closed piece at the density of
+    the plug (x, y, density) whose axis is nearest its centre of mass.  VerificationFailed when the file
+    holds another number of pieces."""
+    pieces = _load_volume(plugs_stl).split(only_watertight=True)
+    if len(pieces) != len(plugs):
+        raise VerificationFailed(f"{plugs_stl}: {len(pieces)} closed pieces for {len(plugs)} plugs")
+    axes = np.array([[x, y] for x, y, _ in plugs])
+    total = MassProps.zero()
+    for piece in pieces:
+        k = int(np.argmin(np.linalg.norm(axes - piece.center_mass[:2], axis=1)))
+        total = total + _mesh_props(piece, plugs[k][2])
+    return total
+
+
 def mesh_web_from_files(stl, density_g_cm3: float, plugs_stl=None, plugs=()) -> MassProps:
     """A web from its STL files, by trimesh: the body at `density_g_cm3`, and each connected closed piece
     of `plugs_stl` at the density of the plug (x, y, density) whose axis it surrounds."""
     total = mesh_massprops(stl, density_g_cm3)
     if plugs:
-        pieces = _load_volume(plugs_stl).split(only_watertight=True)
-        if len(pieces) != len(plugs):
-            raise VerificationFailed(f"{plugs_stl}: {len(pieces)} closed pieces for {len(plugs)} plugs")
-        axes = np.array([[x, y] for x, y, _ in plugs])
-        for piece in pieces:
-            k = int(np.argmin(np.linalg.norm(axes - piece.center_mass[:2], axis=1)))
-            total = total + _mesh_props(piece, plugs[k][2])
+        total = total + mesh_plugs_from_file(plugs_stl, plugs)
     return total
 
 

@@ -27,7 +27,8 @@ def limits_of(job) -> Limits:
     """The planner's limits from the job's [correction] table."""
     c = job.correction
     return Limits(min_wall=c.min_wall, pin_wall=c.pin_wall, max_depth=c.max_depth, through=c.through,
-                  drills=c.drills, point_angle=c.point_angle, depth_step=c.depth_step)
+                  drills=c.drills, point_angle=c.point_angle, depth_step=c.depth_step,
+                  plug_min_length=c.plug_min_length, plug_min_length_ratio=c.plug_min_length_ratio)
 
 
 def features_massprops(features, section) -> MassProps:

@@ -7,7 +7,7 @@ nothing is left in /tmp or in the repository.
 The job is an invented demo: the minimal job's engine and webs (tests/conftest.py), each web
 already carrying a blind hole drilled from the inner face off the centre line on the pin side
 (so the sheet's mirrored x can be seen) and a kidney pocket on the outer face;
-the planner adds heavy-metal plugs (kind = "auto", blind holes only).
+the planner adds heavy-metal plugs (kind = "auto", blind holes only, plugs down to half a diameter long).
 """
 
 from __future__ import annotations
@@ -55,6 +55,7 @@ corner_radius = 3.0
 kind = "auto"
 through = false
 max_depth = 12.0
+plug_min_length_ratio = 0.5   # this shop presses plugs half a diameter long (the default asks 0.75)
 """
 
 

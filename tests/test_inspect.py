@@ -328,6 +328,8 @@ def test_bad_inputs_one_line_exit_2(tmp_path, capsys):
         ([str(dxf), "--thickness", "-4"], "--thickness"),
         ([str(dxf), "--thickness", "18", "--material", "unobtanium"], "--material"),
         ([str(dxf), "--thickness", "18", "--density", "99"], "--density"),    # outside 0.5 .. 25
+        ([str(dxf), "--thickness", "18", "--plug-density", "17"], "--plug-density"),   # a DXF has no plugs
+        ([str(write_job(tmp_path)), "--plug-material", "W-alloy-class-1"], "--plug-material"),  # the job's own
         ([str(tmp_path / "web.iges")], "unknown file type '.iges'"),
         ([str(tmp_path / "missing.step")], "missing.step: file not found"),
         ([str(tmp_path / "missing.dxf"), "--thickness", "18"], "file not found"),

@@ -99,7 +99,8 @@ def test_same_job_gives_byte_identical_plan_json_and_force_replaces(demo_plan):
     # --force replaced the folder whole: the stale file is gone, the contract's files are there
     names = {p.name for p in second.iterdir()}
     assert "stale.txt" not in names
-    assert {"plan.json", "web-a.step", "web-a.stl", "web-b.step", "web-b.stl", "study.json"} <= names
+    assert {"plan.json", "web-a.step", "web-a.stl", "web-a.json", "web-b.step", "web-b.stl", "web-b.json",
+            "study.json"} <= names
     assert not [p for p in tmp.iterdir() if p.name.startswith((".second", ".first"))]
 
 

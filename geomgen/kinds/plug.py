@@ -15,6 +15,12 @@ from ..units import to_internal
 from .base import FeatureKind, ReportCells, RoundOnFace, axial_body, cylinder_massprops, face_z_range, mm
 
 
+def least_plug_length(diameter: float, *, min_length: float, min_ratio: float) -> float:
+    """The shortest plug of `diameter` mm that a press fit holds by the job's rule, mm:
+    `plug_min_length`, and `plug_min_length_ratio` times the diameter."""
+    return max(float(min_length), float(min_ratio) * float(diameter))
+
+
 @dataclass(frozen=True)
 class Plug(RoundOnFace, FeatureKind):
     """A flat-bottomed bore filled flush by a heavy-metal plug.
@@ -75,6 +81,16 @@ class Plug(RoundOnFace, FeatureKind):
         if self.density is not None:
             return float(self.density)
         return named_material(self.material, "plug.material").density
+
+    def length_shortfall(self, *, min_length: float, min_ratio: float) -> str | None:
+        """Why this plug is too short to be held by the job's rule (naming the key), or None."""
+        tol = 1e-9
+        if self.length < min_length - tol:
+            return (f"{self.length:g} mm long, shorter than correction.plug_min_length = {min_length:g} mm")
+        if self.length < min_ratio * self.diameter - tol:
+            return (f"{self.length:g} mm long for its {self.diameter:g} mm diameter, length/diameter "
+                    f"{self.length / self.diameter:.2f}, less than correction.plug_min_length_ratio = {min_ratio:g}")
+        return None
 
     def plug_mass_g(self) -> float:
         return self.plug_density() * 1e-3 * math.pi * 0.25 * self.diameter ** 2 * self.length
