@@ -90,29 +90,35 @@ def test_thin_web_gets_plugs_that_hold_and_the_rule_is_what_changes_them():
     assert not any("plug_min_length" in line for line in held.warnings)
 
 
+#: the thin web with a heavier big end (invented): 8 mm plugs as long as the web no longer reach it, wider
+#: shorter ones would (the planner's multi-row search reaches the plain THIN_WEB with plugs that hold)
+THIN_WEB_HEAVY = {**THIN_WEB, "engine.rotating.rod_big_end": 140.0}
+
+
 def test_out_of_reach_with_the_rule_is_exit_3_naming_the_keys(tmp_path, capsys):
-    data = minimal_job_dict(THIN_WEB)
+    data = minimal_job_dict(THIN_WEB_HEAVY)
     with pytest.raises(Infeasible) as err:
         geomgen.plan(data)
     assert "correction.plug_min_length = 5 mm" in str(err.value)
     assert "correction.plug_min_length_ratio = 0.75" in str(err.value)
     # the same from the command line: one line, exit 3, nothing written
-    path = write_job(tmp_path, THIN_WEB)
+    path = write_job(tmp_path, THIN_WEB_HEAVY)
     out = tmp_path / "out"
     assert main(["plan", str(path), "--out", str(out)]) == 3
     err_lines = capsys.readouterr().err.strip().splitlines()
     assert len(err_lines) == 1 and "correction.plug_min_length" in err_lines[0]
     assert not out.exists()
     # and the rule is the binding constraint: at 0 the same web is planned
-    loose = geomgen.plan(minimal_job_dict({**THIN_WEB, "correction.plug_min_length": 0.0,
+    loose = geomgen.plan(minimal_job_dict({**THIN_WEB_HEAVY, "correction.plug_min_length": 0.0,
                                            "correction.plug_min_length_ratio": 0.0}))
     assert _plugs(loose) and not all(_holds(f) for f in _plugs(loose))
 
 
-def test_auto_and_trim_plan_only_plugs_that_hold():
-    # the minimal job (conftest) planned by auto, then trimmed by 0.8 g at 55 mm at 200 deg: both used to
-    # give plugs shorter than the rule (22 x 14.8 mm, then 3.5 x 3.8 mm)
-    job = geomgen.load_job(minimal_job_dict({"correction.kind": "auto"}))
+def test_plan_and_trim_plan_only_plugs_that_hold():
+    # the minimal job (conftest) planned with plugs, then trimmed by 0.8 g at 55 mm at 200 deg: auto used to
+    # give plugs shorter than the rule here (22 x 14.8 mm, then 3.5 x 3.8 mm); auto now finds holes, so
+    # the method is named
+    job = geomgen.load_job(minimal_job_dict({"correction.kind": "plugs"}))
     first = geomgen.plan(job)
     trimmed = geomgen.trim(job, previous=first, unbalance="0.8 g at 55 mm", angle=200)
     plugs = _plugs(first) + _plugs(trimmed)
