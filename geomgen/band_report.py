@@ -31,6 +31,10 @@ def band_figure_svg(doc: dict, title: str = "") -> str:
     return re.sub(r'<svg([^>]*?) width="[^"]*" height="[^"]*"', r"<svg\1", svg, count=1)
 
 
+_OK_BOX = ' style="border-color: var(--after); background: #f1f8f3"'
+_OK_TEXT = ' style="color: var(--after)"'
+
+
 def _pts(fraction: float, digits: int = 2) -> str:
     return _n(100.0 * fraction, digits)
 
@@ -61,7 +65,9 @@ def band_section(doc: dict) -> str:
         _figure("cranks within the tolerance", f"{_n(100.0 * r['within_tolerance_probability'], 1)} %",
                 "ok" if within else "bad"),
         "</div>",
-        f'<div class="caution" role="note"><strong>{"Attainable" if v["attainable"] else "Not attainable"}'
+        # a tolerance within reach is good news: the caution box in the report's green
+        f'<div class="caution" role="note"{_OK_BOX if v["attainable"] else ""}><strong'
+        f'{_OK_TEXT if v["attainable"] else ""}>{"Attainable" if v["attainable"] else "Not attainable"}'
         f' with these instruments</strong><p>{_e(v["head"][0].upper() + v["head"][1:])}.</p>',
     ]
     if v.get("actions"):
@@ -92,14 +98,15 @@ def band_section(doc: dict) -> str:
     lin, ag = b["linear"], b["agreement"]
     rows = [["mean", _n(lin["mean"], 5), _n(b["mean"], 5)],
             ["standard uncertainty", _n(lin["u"], 5), _n(b["u"], 5)],
-            ["95 % interval", f"{_n(lin['low_95'], 5)} – {_n(lin['high_95'], 5)} (± 2u)",
+            ["95 % interval", f"{_n(lin['low_95'], 5)} – {_n(lin['high_95'], 5)} (± 1.96 u)",
              f"{_n(b['low_95'], 5)} – {_n(b['high_95'], 5)} (2.5 and 97.5 percentiles)"]]
     parts.append("<h3>Two ways: first order and Monte Carlo</h3>")
     parts.append(_table(["balance factor", "first order (JCGM 100:2008)", "Monte Carlo (JCGM 101:2008)"], rows,
                         left=1))
     verdict = ("validated: the first-order interval agrees with the Monte Carlo one" if ag["validated"] else
-               "not validated: the output is not Gaussian (an input spread evenly between its bounds dominates), "
-               "so the Monte Carlo interval is the one to use")
+               "not validated: the output is not Gaussian enough for y ± 1.96 u to be its 95 % interval (its "
+               "inputs are spread evenly between their bounds; the fewer they are, or the more one of them "
+               "dominates, the flatter the output), so the Monte Carlo interval is the one to use")
     apart = _n(100.0 * abs(ag["u_ratio_mc_to_linear"] - 1), 2)
     parts.append(f'<p class="note">The standard uncertainties agree to {apart} '
                  f"%. JCGM 101:2008 8.2: the ends of the intervals differ by {_n(ag['d_low'], 5)} and "

@@ -28,8 +28,9 @@ Propagation:
    4.3.7), the model evaluated on the arrays, the probabilistically symmetric 95 % coverage interval
    (JCGM 101 7.7) from the 2.5 and 97.5 percentiles.  A fixed seed: the same job gives the same bytes.
 
-JCGM 101 section 8 says when the first can be trusted: its interval y +- 2 u_c must agree with the Monte
-Carlo interval within the numerical tolerance of u_c given to two significant digits.  Both are shown.
+JCGM 101 section 8 says when the first can be trusted: its interval y +- 1.96 u_c must agree with the Monte
+Carlo interval within the numerical tolerance of u_c given to two significant digits (k = 1.96, the
+normal distribution's 95 % point, JCGM 100:2008 Table G.1).  Both are shown.
 """
 
 from __future__ import annotations
@@ -44,6 +45,8 @@ from .tolerances import FLOORS, Tolerances
 SAMPLES = 100_000
 SEED = 21940            # any fixed number: the same job gives the same figures
 COVERAGE = 0.95
+#: the coverage factor of a 95 % interval of a normal distribution, JCGM 100:2008 Table G.1 (k_p = 1.960)
+K95 = 1.96
 COMPLEX_STEP = 1e-20
 HISTOGRAM_BINS = 60
 
@@ -559,16 +562,16 @@ def coverage(values: np.ndarray, p: float = COVERAGE) -> tuple[float, float]:
 
 
 def jcgm101_validation(y: float, u: float, low: float, high: float) -> dict:
-    """JCGM 101 8.2: does the GUM interval y +- 2u agree with the Monte Carlo one?
+    """JCGM 101 8.2: does the GUM interval y +- k u (k = 1.96, normal) agree with the Monte Carlo one?
 
     The numerical tolerance: u written with two significant digits as c x 10^l, delta = 10^l / 2
-    (JCGM 101 7.9.2); the GUM is validated when |y - 2u - low| and |y + 2u - high| are both <= delta.
+    (JCGM 101 7.9.2); the GUM is validated when |y - k u - low| and |y + k u - high| are both <= delta.
     """
     if u <= 0.0:
         return {"delta": 0.0, "d_low": abs(y - low), "d_high": abs(y - high), "validated": low == high == y}
     ell = math.floor(math.log10(u)) - 1
     delta = 0.5 * 10.0 ** ell
-    d_low, d_high = abs(y - 2.0 * u - low), abs(y + 2.0 * u - high)
+    d_low, d_high = abs(y - K95 * u - low), abs(y + K95 * u - high)
     return {"delta": delta, "d_low": d_low, "d_high": d_high, "validated": d_low <= delta and d_high <= delta}
 
 
@@ -666,10 +669,10 @@ def _band_figures(job, model, s) -> dict:
         "mean": float(np.mean(bf)), "low_95": s["bf_low"], "high_95": s["bf_high"], "method": "monte_carlo",
         "u": u_mc, "samples": int(bf.size), "seed": SEED,
         "nominal": nominal(model)["bf"], "asked": job.engine.balance_factor,
-        "linear": {"mean": y, "u": u, "low_95": y - 2.0 * u, "high_95": y + 2.0 * u, "coverage_factor": 2.0,
+        "linear": {"mean": y, "u": u, "low_95": y - K95 * u, "high_95": y + K95 * u, "coverage_factor": K95,
                    "method": "first order, JCGM 100:2008 eq. (10), sensitivities by the complex step"},
         "agreement": {"u_ratio_mc_to_linear": (u_mc / u) if u > 0 else 1.0, **validation,
-                      "note": "JCGM 101:2008 8.2: the first-order interval y +- 2u is validated when both ends lie "
+                      "note": "JCGM 101:2008 8.2: the first-order interval y +- 1.96 u is validated when both ends lie "
                               "within delta of the Monte Carlo interval (delta: half a unit in the second "
                               "significant digit of u)"},
         "histogram": {"edges": [float(e) for e in edges], "counts": [int(c) for c in counts]},
@@ -744,7 +747,6 @@ def model_check(model: Model, webs) -> dict:
 
 
 # ------------------------------------------------------------------ verdict: attainable, and what would make it so
-_K95 = 2.0
 
 
 def _remedy_text(knob: str, value, model: Model, tol: Tolerances) -> str:
@@ -828,7 +830,7 @@ def verdict(job, webs, model: Model, s: dict, tol: Tolerances, residual: dict) -
     """Is the job's tolerance attainable with these instruments, and if not, what would make it so.
 
     Attainable: 95 % of the Monte Carlo cranks within the tolerance on |deviation|.  Otherwise the
-    largest contributions are narrowed in turn (first order, k = 2, against the tolerance less the shift
+    largest contributions are narrowed in turn (first order, k = 1.96, against the tolerance less the shift
     of the expected balance factor), never below what the instrument can do (tolerances.FLOORS); then each
     is loosened again to the widest 1-2-5 figure that still does; the result is checked by a Monte Carlo
     run with those figures.
@@ -850,7 +852,7 @@ def verdict(job, webs, model: Model, s: dict, tol: Tolerances, residual: dict) -
         out["tail"] = note.removeprefix("; ")
         out["text"] = out["head"] + note
         return out
-    budget = ((tol_pts - abs(bias)) / _K95) ** 2 / 1e4
+    budget = ((tol_pts - abs(bias)) / K95) ** 2 / 1e4
     chosen: list = []
     now_of = {}
     knobs = knob_variances(model, lin)

@@ -27,7 +27,7 @@ def band_lines(doc: dict) -> list[str]:
     lin = b["linear"]
     lines.append(f"balance factor band, 95 % (Monte Carlo, {b['samples']} samples): {b['low_95']:.4f} .. "
                  f"{b['high_95']:.4f}, mean {b['mean']:.4f} (first order: {lin['mean']:.4f} +- "
-                 f"{2 * lin['u']:.4f}, k = 2)")
+                 f"{lin['coverage_factor'] * lin['u']:.4f}, k = {lin['coverage_factor']:g})")
     rows = doc.get("contributions") or []
     if rows:
         top = rows[0]
