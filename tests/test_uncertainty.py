@@ -252,3 +252,16 @@ def _sample_dict(name: str) -> dict:
 
     with open(f"samples/{name}.toml", "rb") as fh:
         return tomllib.load(fh)
+
+
+def test_the_band_figure_is_the_same_drawn_by_the_sidecar_or_here():
+    """The report's band picture: the second process (geomgen.sidecar) draws the very bytes this one would."""
+    from geomgen import sidecar
+    from geomgen.band_report import band_figure_svg
+
+    doc = geomgen.plan("samples/plugs-stroker.toml").figures
+    here = band_figure_svg(doc)
+    with sidecar.started() as side:
+        assert side is not None
+        there = band_figure_svg(doc)
+    assert here == there and "What moves it most" in here
