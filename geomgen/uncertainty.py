@@ -224,7 +224,6 @@ class Model:
     radius: float
     bf_asked: float
     target_y: float | None = None   # webs at target exactly (the study): their U_y, crank frame
-    notes: list[str] = field(default_factory=list)
 
     def evaluate(self, v: dict) -> dict:
         """{"bf", "du_x", "du_y"} (arrays) for input values `v` ({name: array}); the balance factor is a
