@@ -14,6 +14,7 @@ from .balance import bob_weight, rpm_to_omega, web_target
 from .errors import BadInput
 from .fits import DEFAULT_FIT, check_fit
 from .materials import MATERIALS, Material, custom, material
+from .tolerances import KEYS as _TOLERANCE_KEYS
 from .units import to_internal
 
 #: `outline_gap` default, mm: DXF ends closer than this are joined.  CAD exports commonly leave gaps of
@@ -142,6 +143,8 @@ class WebSpec:
     pin_inner_diameter: float = 0.0        # the crankpin's own bore, mm (0 = solid pin)
     pin_material: Material | None = None   # the crankpin's material (None = the web's)
     shaft_diameter: float = 0.0            # an integral mainshaft where main_bore = 0: nothing new is cut there
+    weighing: object | None = None         # calibrate.Weighing: what the builder weighed and measured
+    calibration: object | None = None      # calibrate.Calibration: the web fitted to its weighed mass
 
     @property
     def density(self) -> float:
@@ -199,6 +202,7 @@ class Job:
     output: Output
     overspeed: float = 1.2                 # plug loads are also shown at overspeed * max_rpm
     warnings: tuple[str, ...] = ()         # things the job allows but a builder should look at
+    tolerances: object | None = None       # tolerances.Tolerances: how well each input is known
 
     @property
     def tolerance_gmm(self) -> float:
@@ -213,12 +217,15 @@ class Job:
 
 # ---------------------------------------------------------------- loading
 
-_TOP = {"name", "engine", "balancer", "web", "webs", "correction", "output", "overspeed"}
+_TOP = {"name", "engine", "balancer", "web", "webs", "correction", "output", "overspeed", "tolerances"}
 _ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt", "reciprocating", "rotating",
            "crank_parts", "rotation"}
 _BALANCER = {"share", "offset"}
 _WEB = {"diameter", "outline", "outline_units", "outline_gap", "thickness", "material", "density", "pin_bore",
-        "main_bore", "features", "pin_interference", "pin_inner_diameter", "pin_material", "shaft_diameter"}
+        "main_bore", "features", "pin_interference", "pin_inner_diameter", "pin_material", "shaft_diameter",
+        "weighed", "calibrate", "measured_unbalance", "measured_angle"}
+#: the keys of what the builder weighed and measured on one web (geomgen.calibrate)
+_WEIGHING = ("weighed", "calibrate", "measured_unbalance", "measured_angle")
 _WEBS = _WEB | {"name", "share"}
 _CORRECTION = {"kind", "drills", "max_depth", "min_wall", "pin_wall", "through", "keep_out",
                "plug_material", "lighten", "point_angle", "depth_step", "bf_tolerance_percent",
@@ -228,7 +235,7 @@ _OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step"
 _UNIT_NAMES = {"length": "mm", "mass": "g", "speed": "rpm", "angle": "deg", "density": "g/cm^3"}
 #: where each key lives, to point a key put in the wrong table to its home
 _HOMES = {"the top level": _TOP, "engine": _ENGINE, "balancer": _BALANCER, "web": _WEB, "correction": _CORRECTION,
-          "output": _OUTPUT}
+          "output": _OUTPUT, "tolerances": set(_TOLERANCE_KEYS)}
 KINDS = ("holes", "pockets", "plugs", "radial", "auto")
 ROTATIONS = ("ccw", "cw")
 
@@ -402,11 +409,22 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
                          for i, f in enumerate(raw, 1))
     web_material = _resolve_material(t, where)
     fit, pin_inner, pin_material = _press_fit(t, where, pin_bore, web_material)
-    return WebSpec(name=name, thickness=thickness, material=web_material, pin_bore=pin_bore,
+    spec = WebSpec(name=name, thickness=thickness, material=web_material, pin_bore=pin_bore,
                    main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units, outline_gap=gap,
                    shaft_diameter=shaft,
                    features=features, share=share, pin_interference=fit, pin_inner_diameter=pin_inner,
                    pin_material=pin_material)
+    if any(k in t for k in _WEIGHING):
+        # the web as weighed: its density (or thickness) fitted to the scale; the plan starts from it
+        from .calibrate import calibrate_web, read_weighing
+
+        bare = {k: v for k, v in t.items() if k not in _WEIGHING}
+
+        def rebuild(new_thickness: float) -> WebSpec:
+            return _web({**bare, "thickness": new_thickness}, where, name, share, engine, base, plug_material)
+
+        spec = calibrate_web(spec, read_weighing(t, where), stroke=engine.stroke, rebuild=rebuild, where=where)
+    return spec
 
 
 def _press_fit(t: dict, where: str, pin_bore: float, web_material: Material):
@@ -575,7 +593,10 @@ def from_dict(data: dict, *, path: Path | None = None, base: Path | None = None)
     if not isinstance(name, str):
         raise BadInput(f"name: must be text, got {name!r}")
     correction = _correction(data.get("correction", {}))
-    return Job(
+    from .tolerances import read as read_tolerances
+
+    tolerances = read_tolerances(data.get("tolerances", {}))
+    job = Job(
         name=name,
         path=path,
         engine=engine,
@@ -585,7 +606,16 @@ def from_dict(data: dict, *, path: Path | None = None, base: Path | None = None)
         output=_output(data.get("output", {})),
         overspeed=_number(data, "overspeed", "", "dimensionless", default=1.2, lo=1.0, hi=3.0),
         warnings=crank_part_warnings(engine),
+        tolerances=tolerances,
     )
+    if any(w.weighing is not None for w in job.webs):
+        import dataclasses
+
+        from .calibrate import checked
+
+        webs, lines = checked(job, tolerances)
+        job = dataclasses.replace(job, webs=webs, warnings=job.warnings + lines)
+    return job
 
 
 #: files people pass for a job by mistake, and what they are

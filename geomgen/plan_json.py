@@ -17,6 +17,7 @@ from pathlib import Path
 import numpy as np
 
 from . import __version__
+from .calibrate import calibration_figures
 from .crank import crank_figures, plug_density_range
 from .errors import BadInput
 from .features import feature_from_table, feature_massprops, feature_to_table
@@ -25,6 +26,10 @@ from .rounding import fine, num, vec
 from .safety import safety_figures
 from .screens import plug_warnings
 from .trimming import job_fingerprint, trim_figures
+from .uncertainty import band
+
+#: the commands whose plan.json carries the balance-factor band (a trim answers a measurement instead)
+BAND_COMMANDS = ("plan", "build")
 
 CAUTIONS = (
     "A crank that comes apart at speed can kill. These figures are design aids, not a release for service.",
@@ -101,6 +106,9 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
             "within_tolerance": p.within_tolerance,
         }
         entry["features"] = entry["existing_features"] + entry["planned_features"]
+        calibration = calibration_figures(w.spec)
+        if calibration is not None:
+            entry["calibration"] = calibration
         if v is not None:
             entry["exact"] = v["exact"]
             entry["mesh"] = v["mesh"]
@@ -138,6 +146,13 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
         # which job this plan belongs to, so that a trim from it can check (geomgen.trimming)
         "job_fingerprint": job_fingerprint(job),
     }
+    if command in BAND_COMMANDS:
+        # how sure the balance factor is (geomgen.uncertainty): the contract's two keys at the top, the rest
+        # beside them
+        found = band(job, webs)
+        doc["balance_factor_band"] = found.pop("balance_factor_band")
+        doc["contributions"] = found.pop("contributions")
+        doc["uncertainty"] = found
     density_range = plug_density_range(job, webs)
     if density_range is not None:
         doc["plug_density_range"] = density_range

@@ -106,3 +106,69 @@ def study_svg(result: dict) -> bytes:
     with matplotlib.rc_context({"svg.hashsalt": "geomgen-study", "svg.fonttype": "none"}):
         fig.savefig(buf, format="svg", metadata={"Date": None})
     return buf.getvalue()
+
+
+def band_figure(band: dict, contributions: list[dict], *, tolerance_points: float, title: str = ""):
+    """How sure the balance factor is: the Monte Carlo histogram of the balance factor (with the first-order
+    normal curve, the asked value and its tolerance) beside the inputs that move it, in balance-factor
+    points.  Reads plan.json's (or study.json's) "balance_factor_band" and "contributions"."""
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=(12.5, 5.6))
+    hist = fig.add_subplot(1, 2, 1)
+    bars = fig.add_subplot(1, 2, 2)
+
+    edges = [100.0 * e for e in band["histogram"]["edges"]]
+    counts = band["histogram"]["counts"]
+    width = edges[1] - edges[0]
+    total = max(sum(counts), 1)
+    density = [c / (total * width) for c in counts]
+    hist.bar(edges[:-1], density, width=width, align="edge", color="tab:blue", alpha=0.55,
+             label=f"Monte Carlo, {band['samples']} samples")
+    lin = band["linear"]
+    mu, u = 100.0 * lin["mean"], 100.0 * lin["u"]
+    if u > 0:
+        xs = [edges[0] + (edges[-1] - edges[0]) * i / 200.0 for i in range(201)]
+        hist.plot(xs, [math.exp(-0.5 * ((x - mu) / u) ** 2) / (u * math.sqrt(2 * math.pi)) for x in xs],
+                  color="tab:orange", lw=1.6, label="first order (GUM): normal, same mean and u")
+    asked = 100.0 * band["asked"]
+    hist.axvspan(asked - tolerance_points, asked + tolerance_points, color="tab:green", alpha=0.12,
+                 label=f"asked {band['asked']:g} ± {tolerance_points:g} points")
+    hist.axvline(asked, color="tab:green", lw=1.2)
+    hist.axvline(100.0 * band["nominal"], color="black", lw=1.0, ls=":", label="the plan's own figure")
+    for key in ("low_95", "high_95"):
+        hist.axvline(100.0 * band[key], color="tab:red", lw=1.2, ls="--",
+                     label="95 % interval (Monte Carlo)" if key == "low_95" else None)
+    hist.set_xlabel("balance factor achieved, % of the reciprocating mass")
+    hist.set_ylabel("probability density, 1/point")
+    hist.set_ylim(bottom=0.0)
+    hist.grid(True, lw=0.4, alpha=0.6)
+    hist.legend(fontsize=7.5, loc="upper center", bbox_to_anchor=(0.5, -0.14), ncol=2, frameon=False)
+
+    rows = contributions[:8][::-1]
+    names = [r["input"] if len(r["input"]) <= 44 else r["input"][:42] + "…" for r in rows]
+    values = [r["bf_points"] for r in rows]
+    bars.barh(range(len(rows)), values, color="tab:blue", alpha=0.75)
+    bars.set_yticks(range(len(rows)))
+    bars.set_yticklabels(names, fontsize=7.5)
+    bars.axvline(tolerance_points, color="tab:green", lw=1.2, label=f"tolerance ±{tolerance_points:g} points")
+    bars.set_xlabel("± balance-factor points across the input's bounds")
+    bars.grid(True, axis="x", lw=0.4, alpha=0.6)
+    bars.legend(fontsize=7.5, loc="lower right")
+    fig.text(0.27, 0.93, "Balance factor achieved: where the cranks land", ha="center", fontsize=10)
+    fig.text(0.78, 0.93, "What moves it most", ha="center", fontsize=10)
+    if title:
+        fig.suptitle(title, fontsize=11, y=0.995)
+    fig.subplots_adjust(left=0.06, right=0.98, top=0.9, bottom=0.3, wspace=0.55)
+    return fig
+
+
+def band_svg(band: dict, contributions: list[dict], *, tolerance_points: float, title: str = "") -> bytes:
+    """The band figure as SVG bytes; the same figures give the same bytes."""
+    import matplotlib
+
+    fig = band_figure(band, contributions, tolerance_points=tolerance_points, title=title)
+    buf = io.BytesIO()
+    with matplotlib.rc_context({"svg.hashsalt": "geomgen-band", "svg.fonttype": "none"}):
+        fig.savefig(buf, format="svg", metadata={"Date": None})
+    return buf.getvalue()

@@ -179,6 +179,15 @@ def _summary(doc: dict) -> str:
     ])
 
 
+def _band(doc: dict) -> str:
+    """How sure the balance factor is (geomgen.band_report), for a document that has the band."""
+    if "balance_factor_band" not in doc:
+        return ""
+    from .band_report import band_section
+
+    return "<h2>How sure is the balance factor</h2>" + band_section(doc)
+
+
 def _warnings(doc: dict) -> str:
     lines = doc.get("warnings", [])
     if not lines:
@@ -503,7 +512,7 @@ def report_html(*, job, doc: dict, webs, study: dict | None, study_svg: bytes | 
         "Lengths in mm, masses in g, unbalance in g·mm. Web frame: crank axis at the centre, crankpin on +Y, "
         "counterweight on −Y, seen from the outer face; angles from +Y, counter-clockwise.</p>",
         _cautions(doc), _warnings(doc), _trim(doc),
-        "<h2>Result at a glance</h2>", _summary(doc),
+        "<h2>Result at a glance</h2>", _summary(doc), _band(doc),
         "<h2>Engine and weighed masses</h2>", _engine(doc),
         "<h2>Balance of each web</h2>", _balance_table(doc),
         "<h2>Couple</h2>", _couple(doc), _plug_range(doc),

@@ -10,7 +10,8 @@ byte for byte what an in-process run writes.  If the helper cannot start, or fai
 answer shape, the work is done in-process instead: the sidecar is a speed-up, never a dependency.
 
 Protocol: one JSON object per line each way.  {"op": "mesh", ...} -> {"ok": true, "mass": ..., ...};
-{"op": "svg", "study": {...}} -> {"ok": true, "svg": "..."}; EOF ends the helper.
+{"op": "svg", "study": {...}} -> {"ok": true, "svg": "..."}; {"op": "band_svg", "band": {...},
+"contributions": [...], "tolerance_points": ...} -> {"ok": true, "svg": "..."}; EOF ends the helper.
 """
 
 from __future__ import annotations
@@ -111,6 +112,10 @@ def _serve() -> None:
                 answer = {"ok": True, **massprops_to_json(props)}
             elif request["op"] == "svg":
                 answer = {"ok": True, "svg": plots.study_svg(request["study"]).decode("utf-8")}
+            elif request["op"] == "band_svg":
+                answer = {"ok": True, "svg": plots.band_svg(request["band"], request["contributions"],
+                                                            tolerance_points=request["tolerance_points"],
+                                                            title=request.get("title", "")).decode("utf-8")}
             else:
                 answer = {"ok": False}
         except Exception as exc:  # noqa: BLE001  any failure: the caller does the work itself

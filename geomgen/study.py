@@ -259,6 +259,13 @@ def study_of(job) -> dict:
                    iso_grade=job.correction.iso_grade, bf_tolerance_percent=job.correction.bf_tolerance_percent,
                    name=job.name)
     result["warnings"] = list(job.warnings)
+    # how sure the balance factor is from the weighed parts alone (geomgen.uncertainty)
+    from .uncertainty import parts_band, rounded
+
+    found = rounded(parts_band(job))
+    result["balance_factor_band"] = found.pop("balance_factor_band")
+    result["contributions"] = found.pop("contributions")
+    result["uncertainty"] = found
     return result
 
 
@@ -311,6 +318,9 @@ def summary_lines(result: dict) -> list[str]:
             f"ISO 21940-11 G{iso['grade_mm_s']:g}: permissible residual unbalance "
             f"{iso['permissible_unbalance_gmm']:g} g*mm for {iso['rotor_mass_g']:g} g ({iso['rotor_mass_note']})"
         )
+    from .uncertainty_text import band_lines
+
+    lines += band_lines(result)
     lines.append(result["caution"])
     return lines
 

@@ -7,6 +7,7 @@ from __future__ import annotations
 import math
 
 from .plan_json import CAUTIONS
+from .uncertainty_text import band_lines
 
 
 def summary_lines(doc: dict) -> list[str]:
@@ -32,6 +33,7 @@ def summary_lines(doc: dict) -> list[str]:
              f"permits {crank['iso_21940_11']['permissible_residual_gmm']:.1f} g*mm at max_rpm",
              f"couple {math.hypot(*crank['couple_gmm2']):.0f} g*mm^2 (+-{crank['plane_unbalance_gmm']:.1f} g*mm in the "
              f"webs' planes)"]
+    lines += band_lines(doc)
     for w in doc["webs"]:
         lines.append(f"web {w['name']}: {w['method']}, {len(w['planned_features'])} new feature(s); target "
                      f"{w['target_gmm'][1]:.1f} g*mm, predicted {w['predicted']['unbalance_gmm'][1]:.1f}, "

@@ -252,7 +252,12 @@ def test_the_readme_example_runs_and_prints_the_hand_figures(tmp_path, monkeypat
     # factory 24 mm through holes at (+-35, 40) and the plan's new holes, all through (flat, full depth)
     entry = pc.web_entry(pc.read_plan(tmp_path / "heavier-piston-out"), "a")
     assert all(f["kind"] == "hole" and f.get("through") for f in entry["features"])
-    rho_t = STEEL * 1e-3 * 19.0 * math.pi / 4
+    # the sample's web a was weighed (2069.4 g): its steel's density is fitted to that, the rest as before
+    rho = entry["calibration"]["density_g_cm3"]
+    assert entry["density_g_cm3"] == pytest.approx(rho, rel=1e-6) and abs(rho - STEEL) < 0.01
+    rho_t = rho * 1e-3 * 19.0 * math.pi / 4
+    before = [28.0] + [f["diameter"] for f in entry["existing_features"]]
+    assert rho_t * (140.0 ** 2 - sum(d * d for d in before)) == pytest.approx(2069.4, abs=1e-6)  # as weighed
     holes = [(28.0, 0.0, 31.0)] + [(f["diameter"], f["x"], f["y"]) for f in entry["features"]]
     mass = rho_t * (140.0 ** 2 - sum(d * d for d, _, _ in holes))
     u = -rho_t * np.array([sum(d * d * x for d, x, _ in holes), sum(d * d * y for d, _, y in holes)])

@@ -84,5 +84,9 @@ def test_sample_plans_land_within_tolerance(name, tmp_path):
         assert trimesh.load(stl, force="mesh").is_volume, stl.name
     html = (out / "report.html").read_text()
     assert "can kill" in html and "not a release for service" in html
+    # how sure the balance factor is: the band and its pictures (histogram and contributions, inline SVG)
+    band = doc["balance_factor_band"]
+    assert band["low_95"] <= band["mean"] <= band["high_95"] and doc["contributions"]
+    assert "How sure is the balance factor" in html and "What moves it most" in html   # the figure's own text
     for f in ("operations.csv", "drawing.dxf", "web-a.step", "web-b.step", "study.json", "study.svg"):
         assert (out / f).is_file(), f
