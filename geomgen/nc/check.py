@@ -175,6 +175,8 @@ def check(prog) -> Checked:
             elif mv.feed > m.max_feed * (1 + 1e-6) + res:
                 errors.append(f"{where}: F {mv.feed:.1f} mm/min is above machining.max_feed")
         # ---- 3: rapids
+        if mv.rapid and mv.z_unknown and math.isfinite(mv.end[2]) and mv.end[2] < top_all + m.retract - pos_tol:
+            errors.append(f"line {mv.line}: a rapid down to Z{mv.end[2]:.3f} mm, below the R plane over the part")
         if mv.rapid and not mv.z_unknown:
             moves_xy = math.dist(mv.start[:2], mv.end[:2]) > 1e-9
             low = min(mv.start[2], mv.end[2])

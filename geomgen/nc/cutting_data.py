@@ -50,29 +50,31 @@ class Row:
     drill: float          # HSS drill
     reamer: float         # HSS reamer
     end_mill: float       # carbide end mill
-    source: str
+    source: str           # of the drill and reamer speeds
+    end_mill_source: str
 
 
 #: workpiece groups (speeds in m/min)
 ROWS = {
     "carbon steel": Row("carbon steel", 75 * FT, 50 * FT, 90.0,
-                        f"{HANDBOOK}: plain carbon 1027-1052, 175-225 HB, 75 / 50 fpm; carbide end mill "
-                        "90 m/min from memory"),
+                        f"{HANDBOOK}: plain carbon 1027-1052, 175-225 HB, 75 fpm drilling, 50 fpm reaming",
+                        "carbide end mill in carbon steel 90 m/min, from memory"),
     "alloy steel": Row("alloy steel", 45 * FT, 30 * FT, 70.0,
-                       f"{HANDBOOK}: medium-carbon alloy 4130, 4140, 4340 at 250-300 HB, 45 / 30 fpm; "
-                       "carbide end mill 70 m/min from memory"),
+                       f"{HANDBOOK}: medium-carbon alloy 4130, 4140, 4340 at 250-300 HB, 45 fpm drilling, 30 fpm "
+                       "reaming", "carbide end mill in quenched and tempered alloy steel 70 m/min, from memory"),
     "stainless steel": Row("stainless steel", 55 * FT, 35 * FT, 60.0,
-                           f"{HANDBOOK}: austenitic 302, 304, 321, 135-185 HB, 55 / 35 fpm; carbide end mill "
-                           "60 m/min from memory"),
+                           f"{HANDBOOK}: austenitic 302, 304, 321, 135-185 HB, 55 fpm drilling, 35 fpm reaming",
+                           "carbide end mill in austenitic stainless 60 m/min, from memory"),
     "cast iron": Row("cast iron", 70 * FT, 45 * FT, 80.0,
-                     f"{HANDBOOK}: ductile iron 80-55-06, 190-225 HB, 70 / 45 fpm; carbide end mill 80 m/min "
-                     "from memory"),
+                     f"{HANDBOOK}: ductile iron 80-55-06, 190-225 HB, 70 fpm drilling, 45 fpm reaming",
+                     "carbide end mill in ductile iron 80 m/min, from memory"),
     "aluminium": Row("aluminium", 200 * FT, 130 * FT, 250.0,
-                     "from memory: wrought aluminium alloys, HSS drill 200 fpm, reamer 130 fpm, carbide end mill "
-                     "250 m/min (the spindle's top speed usually caps these)"),
+                     "from memory: wrought aluminium alloys, HSS drill 200 fpm, reamer 130 fpm",
+                     "carbide end mill in aluminium 250 m/min, from memory (the spindle's top speed usually caps it)"),
     "tungsten heavy alloy": Row("tungsten heavy alloy", 15.0, 10.0, 40.0,
-                                "from memory: producers' data for ASTM B777 tungsten heavy alloys, machined like "
-                                "a hard grey cast iron; HSS drill 15, reamer 10, carbide end mill 40 m/min"),
+                                "from memory: producers' data for ASTM B777 tungsten heavy alloys, machined like a "
+                                "hard grey cast iron, HSS drill 15 m/min, reamer 10 m/min",
+                                "carbide end mill in tungsten heavy alloy 40 m/min, from memory"),
 }
 
 #: the web materials of geomgen.materials by group
@@ -140,12 +142,15 @@ def cut(kind: str, diameter_mm: float, group: str, machining) -> Cut:
     """
     row = ROWS[group]
     vc = machining.override("surface_speed", kind)
-    source = row.source
+    source = row.end_mill_source if kind == "end_mill" else row.source
     if vc is None:
         vc = getattr(row, kind)
     else:
-        source = f"surface speed from the job's [machining] ({vc:g} m/min); feeds: {row.source}"
+        source = f"surface speed from the job's [machining], {vc:g} m/min"
     per_tooth = None
+    feeds = " (feed from the job's [machining])" if machining.override(
+        "feed_per_tooth" if kind == "end_mill" else "feed_per_rev", kind) else ""
+    source += feeds
     if kind == "end_mill":
         per_tooth = machining.override("feed_per_tooth", kind) or end_mill_feed_per_tooth(diameter_mm)
         per_rev = per_tooth * machining.flutes
