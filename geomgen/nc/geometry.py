@@ -14,6 +14,9 @@ import shapely
 
 from ..loops import Arc, Line, Loop
 
+#: an offset arc smaller than this is no arc a controller can take (I and J to 0.001 mm): dropped, mm
+MIN_ARC_MM = 0.01
+
 
 def mirror_segment(seg):
     """A segment mirrored in x (x -> -x)."""
@@ -44,13 +47,20 @@ def offset_inward(loop: Loop, d: float) -> Loop:
             out.append(Line((x0 + d * nx, y0 + d * ny), (x1 + d * nx, y1 + d * ny)))
         else:
             r = s.radius - d if s.sweep_deg > 0 else s.radius + d
-            if r > 1e-9:
+            if r >= MIN_ARC_MM:
                 out.append(Arc(s.center, r, s.start_deg, s.sweep_deg))
             elif r < -1e-9:
                 raise ValueError(f"an arc of radius {s.radius:g} mm cannot be offset inward by {d:g} mm")
-    # lines that shrank to nothing (between two arcs that now meet) drop out
+    # lines that shrank to nothing (between two arcs that now meet) drop out; an arc too small to program
+    # (a corner radius a hair above the tool's) leaves a gap of at most twice MIN_ARC_MM, bridged by a line
     out = [s for s in out if s.length > 1e-9]
-    return Loop(tuple(out))
+    closed = []
+    for k, s in enumerate(out):
+        closed.append(s)
+        nxt = out[(k + 1) % len(out)]
+        if math.dist(s.end, nxt.start) > 1e-9:
+            closed.append(Line(s.end, nxt.start))
+    return Loop(tuple(closed))
 
 
 def _nearest_on(seg, p) -> tuple[float, tuple[float, float]]:
