@@ -404,3 +404,34 @@ def test_report_shows_the_back_plots(sample_plans):
     assert {"web-a-outer.nc", "web-b-outer.nc"} <= set(files)
     rows = list(csv.DictReader(io.StringIO(files["operations.csv"].decode())))
     assert len(rows) == 4
+
+
+def test_a_writer_bug_stops_the_files_with_exit_4(sample_plans, monkeypatch):
+    """A writer that puts every drilling cycle 1 mm off in X: shop.render refuses to give any file
+    (VerificationFailed, exit code 4), as for a solid that disagrees with its prediction."""
+    from geomgen import shop
+    from geomgen.nc import writer
+
+    real = writer.Writer.cycle
+
+    def off_by_one(self, code, *, x, **kw):
+        return real(self, code, x=x + 1.0, **kw)
+
+    monkeypatch.setattr(writer.Writer, "cycle", off_by_one)
+    plan = sample_plans["heavier-piston"]
+    with pytest.raises(VerificationFailed) as info:
+        shop.render(job=plan.job, doc=plan.figures, webs=_works(plan), study=dict(plan.study))
+    assert info.value.exit_code == 4 and "web-a-outer.nc" in str(info.value)
+
+
+def test_readme_machining_block_is_the_defaults():
+    """The README's job-file block lists [machining] with the defaults the code uses."""
+    import tomllib
+
+    from geomgen.nc.settings import METRIC_END_MILLS, read_machining
+
+    text = (Path(__file__).resolve().parent.parent / "README.md").read_text()
+    block = text.split("## The job file", 1)[1].split("```toml", 1)[1].split("```", 1)[0]
+    data = tomllib.loads(block)
+    assert read_machining(data["machining"]) == Machining(end_mills=METRIC_END_MILLS)
+    assert Machining().end_mill_sizes("metric") == METRIC_END_MILLS
