@@ -14,6 +14,7 @@ from .balance import bob_weight, rpm_to_omega, web_target
 from .errors import BadInput
 from .fits import DEFAULT_FIT, check_fit
 from .materials import MATERIALS, Material, custom, material
+from .nc.settings import KEYS as _MACHINING
 from .tolerances import KEYS as _TOLERANCE_KEYS
 from .units import to_internal
 
@@ -203,6 +204,7 @@ class Job:
     overspeed: float = 1.2                 # plug loads are also shown at overspeed * max_rpm
     warnings: tuple[str, ...] = ()         # things the job allows but a builder should look at
     tolerances: object | None = None       # tolerances.Tolerances: how well each input is known
+    machining: object = None               # geomgen.nc.settings.Machining: the [machining] section
 
     @property
     def tolerance_gmm(self) -> float:
@@ -217,7 +219,8 @@ class Job:
 
 # ---------------------------------------------------------------- loading
 
-_TOP = {"name", "engine", "balancer", "web", "webs", "correction", "output", "overspeed", "tolerances"}
+_TOP = {"name", "engine", "balancer", "web", "webs", "correction", "output", "overspeed", "tolerances",
+        "machining"}
 _ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt", "reciprocating", "rotating",
            "crank_parts", "rotation"}
 _BALANCER = {"share", "offset"}
@@ -235,7 +238,7 @@ _OUTPUT = {"stl_tolerance", "stl_angular_tolerance", "sheet_units", "crank_step"
 _UNIT_NAMES = {"length": "mm", "mass": "g", "speed": "rpm", "angle": "deg", "density": "g/cm^3"}
 #: where each key lives, to point a key put in the wrong table to its home
 _HOMES = {"the top level": _TOP, "engine": _ENGINE, "balancer": _BALANCER, "web": _WEB, "correction": _CORRECTION,
-          "output": _OUTPUT, "tolerances": set(_TOLERANCE_KEYS)}
+          "output": _OUTPUT, "tolerances": set(_TOLERANCE_KEYS), "machining": _MACHINING}
 KINDS = ("holes", "pockets", "plugs", "radial", "auto")
 ROTATIONS = ("ccw", "cw")
 
@@ -607,6 +610,7 @@ def from_dict(data: dict, *, path: Path | None = None, base: Path | None = None)
         overspeed=_number(data, "overspeed", "", "dimensionless", default=1.2, lo=1.0, hi=3.0),
         warnings=crank_part_warnings(engine),
         tolerances=tolerances,
+        machining=_machining(data.get("machining", {})),
     )
     if any(w.weighing is not None for w in job.webs):
         import dataclasses
@@ -616,6 +620,13 @@ def from_dict(data: dict, *, path: Path | None = None, base: Path | None = None)
         webs, lines = checked(job, tolerances)
         job = dataclasses.replace(job, webs=webs, warnings=job.warnings + lines)
     return job
+
+
+def _machining(data):
+    """The [machining] section (geomgen.nc.settings): the shop's mill and tools for the NC programs."""
+    from .nc.settings import read_machining
+
+    return read_machining(data)
 
 
 #: files people pass for a job by mistake, and what they are

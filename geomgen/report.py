@@ -497,12 +497,15 @@ def _study(study: dict | None, figure: bytes | None = None) -> str:
             f"{_n(study['best_balance_factor'], 2)}.</p>")
 
 
-def report_html(*, job, doc: dict, webs, study: dict | None, study_svg: bytes | None = None) -> bytes:
+def report_html(*, job, doc: dict, webs, study: dict | None, study_svg: bytes | None = None, nc=None) -> bytes:
     """The report as UTF-8 bytes.
 
     job : geomgen.job.Job;  doc : the plan.json dict;  webs : pipeline.WebWork list;
-    study : the study.study() result (its figure), or None;  study_svg : that figure, when already drawn.
+    study : the study.study() result (its figure), or None;  study_svg : that figure, when already drawn;
+    nc : the checked NC programs (geomgen.nc.run.NCResult), or None.
     """
+    from .nc.report_section import section_html
+
     title = (f"Crank web trim: {doc['job']}" if doc["command"] == "trim"
              else f"Crank web correction: {doc['job']}")
     blocks = "".join(_web_block(w, entry) for w, entry in zip(webs, doc["webs"]))
@@ -520,9 +523,11 @@ def report_html(*, job, doc: dict, webs, study: dict | None, study_svg: bytes | 
         "<h2>The webs before and after</h2>", blocks,
         "<h2>Verification: prediction, exact solid and mesh</h2>", _verification(doc),
         "<h2>Loads at speed</h2>", _safety(doc),
+        section_html(nc),
         "<h2>Reading the shop sheet</h2>", _sheet_notes(job, doc),
         f'<p class="note">Files of this plan: plan.json, operations.csv (the machinist\'s sheet, '
-        f"{_e(job.output.sheet_units)}), drawing.dxf, the STEP and STL of each web. "
+        f"{_e(job.output.sheet_units)}), drawing.dxf, the STEP and STL of each web, an NC program per web and "
+        "face with new work. "
         "These figures are design aids, not a release for service.</p>",
     ]
     page = ('<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'

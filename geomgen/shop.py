@@ -8,7 +8,7 @@ from __future__ import annotations
 
 
 def render(*, job, doc: dict, webs, study: dict | None = None, study_svg: bytes | None = None) -> dict[str, bytes]:
-    """{file name: bytes} for operations.csv, drawing.dxf and report.html.
+    """{file name: bytes} for operations.csv, drawing.dxf, report.html and the NC programs (web-*.nc).
 
     job : geomgen.job.Job;  doc : the plan.json dict (pipeline.plan_document);
     webs : list of pipeline.WebWork;  study : the full study.study() result
@@ -17,6 +17,7 @@ def render(*, job, doc: dict, webs, study: dict | None = None, study_svg: bytes 
     figure already drawn for study.svg, so the report does not draw it again.
     """
     from .drawing import drawing_dxf
+    from .nc.run import nc_programs
     from .report import report_html
     from .sheet import operations_csv
 
@@ -24,8 +25,11 @@ def render(*, job, doc: dict, webs, study: dict | None = None, study_svg: bytes 
         from .study import study_of
 
         study = study_of(job)
+    # the NC programs of the new work, each read back, simulated and checked (exit 4 if one disagrees)
+    nc = nc_programs(job=job, webs=webs)
     return {
         "operations.csv": operations_csv(job=job, doc=doc, webs=webs),
         "drawing.dxf": drawing_dxf(job=job, doc=doc, webs=webs),
-        "report.html": report_html(job=job, doc=doc, webs=webs, study=study, study_svg=study_svg),
+        "report.html": report_html(job=job, doc=doc, webs=webs, study=study, study_svg=study_svg, nc=nc),
+        **nc.files,
     }

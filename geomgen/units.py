@@ -26,6 +26,8 @@ INTERNAL = {
     "unbalance": "g*mm",
     "inertia": "g*mm^2",
     "dimensionless": "",
+    "surface_speed": "m/min",        # cutting data ([machining])
+    "feed_rate": "mm/min",
 }
 
 #: what to write, per kind, in the messages that refuse a value

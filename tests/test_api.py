@@ -35,7 +35,8 @@ M_RECIP, M_ROT, M_PARTS, BF, STROKE = 250.0 + 80.0, 200.0, 140.0, 0.55, 64.0
 TARGET_PER_WEB = -(M_ROT + M_PARTS + BF * M_RECIP) * STROKE / 2 / 2          # -8344 g*mm
 TOLERANCE_PER_WEB = 0.005 * M_RECIP * STROKE / 2 / 2                          # 26.4 g*mm
 CONTRACT_FILES = {"plan.json", "web-a.step", "web-a.stl", "web-a.json", "web-b.step", "web-b.stl", "web-b.json",
-                  "crank.step", "operations.csv", "drawing.dxf", "report.html", "study.json", "study.svg"}
+                  "crank.step", "operations.csv", "drawing.dxf", "report.html", "study.json", "study.svg",
+                  "web-a-outer.nc", "web-b-outer.nc"}
 
 
 def test_import_geomgen_loads_no_cad_kernel_and_no_plotting():

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -90,3 +91,7 @@ def test_sample_plans_land_within_tolerance(name, tmp_path):
     assert "How sure is the balance factor" in html and "What moves it most" in html   # the figure's own text
     for f in ("operations.csv", "drawing.dxf", "web-a.step", "web-b.step", "study.json", "study.svg"):
         assert (out / f).is_file(), f
+    # an NC program per web and face with new work, checked before it was written; the report draws each
+    programs = sorted(p.name for p in out.glob("*.nc"))
+    assert programs and all(re.fullmatch(r"web-[ab]-(outer|inner|rim)\.nc", p) for p in programs)
+    assert "<h2>NC programs</h2>" in html and all(f"{p}: web" in html for p in programs)

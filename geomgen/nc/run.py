@@ -1,0 +1,57 @@
+"""Every NC program of a plan, checked and drawn: what shop.render adds to a plan's or a trim's files."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+
+@dataclass(frozen=True)
+class ProgramResult:
+    """One program after its check: the program, what the check found, its back-plot (SVG bytes)."""
+
+    program: object
+    checked: object
+    backplot_svg: bytes
+
+
+@dataclass(frozen=True)
+class NCResult:
+    """files : {file name: bytes} of the programs;  programs : ProgramResult per program, in order;
+    notes : features no program cuts."""
+
+    files: dict = field(default_factory=dict)
+    programs: tuple = ()
+    notes: tuple = ()
+
+
+def nc_programs(*, job, webs, draw: bool = True) -> NCResult:
+    """Write, read back, simulate and check every program of the plan's new work (VerificationFailed, exit 4,
+    if one disagrees with the plan); with `draw`, its back-plot too."""
+    from .check import check
+    from .program import programs
+
+    progs, notes = programs(job, webs)
+    results = []
+    done: list[tuple] = []
+    for p in progs:
+        # the usual pair of webs gives two programs that differ only in the web's name: the same blocks in
+        # the same order do the same thing, so the second reuses the first's check
+        same = _neutral(p)
+        checked = next((c for key, q, c in done if key == same and q.features == p.features
+                        and q.section == p.section and q.face == p.face), None)
+        if checked is None:
+            checked = check(p)
+            done.append((same, p, checked))
+        picture = b""
+        if draw:
+            from .backplot import svg
+
+            picture = svg(p, checked)
+        results.append(ProgramResult(p, checked, picture))
+    return NCResult(files={p.name: p.text.encode("ascii") for p in progs}, programs=tuple(results),
+                    notes=tuple(notes))
+
+
+def _neutral(p) -> str:
+    """The program's text with its web's name taken out (comments and file name)."""
+    return p.text.replace(f"web-{p.web}-", "web-*-").replace(f"web {p.web}", "web *")
