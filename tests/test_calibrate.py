@@ -149,11 +149,11 @@ def test_a_stand_reading_finds_a_hidden_hole_and_where():
 
 
 @pytest.mark.parametrize("web, words", [
-    ({"weighed": "20 g"}, "webs[0].weighed: 20 g would need a web density"),
-    ({"calibrate": "thickness"}, "webs[0].calibrate: belongs to a weighed web"),
-    ({"weighed": 1800.0, "calibrate": "mass"}, "webs[0].calibrate: must be 'density' or 'thickness'"),
-    ({"weighed": 1800.0, "measured_unbalance": 100.0}, "webs[0].measured_angle: missing"),
-    ({"weighed": "-3 g"}, "webs[0].weighed: the web's mass must be > 0 g"),
+    ({"weighed": "20 g"}, "webs[1].weighed: 20 g would need a web density"),
+    ({"calibrate": "thickness"}, "webs[1].calibrate: belongs to a weighed web"),
+    ({"weighed": 1800.0, "calibrate": "mass"}, "webs[1].calibrate: must be 'density' or 'thickness'"),
+    ({"weighed": 1800.0, "measured_unbalance": 100.0}, "webs[1].measured_angle: missing"),
+    ({"weighed": "-3 g"}, "webs[1].weighed: the web's mass must be > 0 g"),
 ])
 def test_bad_weighings_are_one_line(web, words):
     with pytest.raises(geomgen.BadInput, match=words.replace("[", r"\[").replace("]", r"\]")):
