@@ -179,7 +179,9 @@ class Plan:
 
         works = self._works
         # trimesh and matplotlib are imported in a second process while this one builds the solids
-        with sidecar.started():
+        with sidecar.started() as side:
+            if side is not None and self._study_dict is not None:
+                side.prefetch({"op": "svg", "study": self._study_dict})   # drawn there while the solids build
             verified, files = solid_files(self.job, works)
             figures, rendered = render_files(self.job, self.command, works, verified,
                                              study_result=self._study_dict, trim=self._trim_dict,

@@ -11,13 +11,19 @@ import re
 from .report import _e, _figure, _n, _table, _vec
 
 
+def band_request(doc: dict, title: str = "") -> dict:
+    """The sidecar request that draws the band's picture (also sent ahead, `sidecar.Sidecar.prefetch`)."""
+    tol = doc["crank"]["bf_tolerance_percent"] if "crank" in doc else doc["inputs"]["bf_tolerance_percent"]
+    return {"op": "band_svg", "band": doc["balance_factor_band"], "contributions": doc["contributions"],
+            "tolerance_points": tol, "title": title}
+
+
 def band_figure_svg(doc: dict, title: str = "") -> str:
     """The band's picture as inline SVG (drawn by the sidecar when one runs, else here)."""
     from . import sidecar
 
-    tol = doc["crank"]["bf_tolerance_percent"] if "crank" in doc else doc["inputs"]["bf_tolerance_percent"]
-    request = {"op": "band_svg", "band": doc["balance_factor_band"], "contributions": doc["contributions"],
-               "tolerance_points": tol, "title": title}
+    request = band_request(doc, title)
+    tol = request["tolerance_points"]
     side = sidecar.active()
     answer = side.ask(request) if side is not None else None
     if answer is not None:

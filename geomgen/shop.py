@@ -25,11 +25,27 @@ def render(*, job, doc: dict, webs, study: dict | None = None, study_svg: bytes 
         from .study import study_of
 
         study = study_of(job)
+    from . import sidecar
+    from .nc.run import backplot_requests, with_backplots
+
+    side = sidecar.active()
+    if side is not None and doc.get("balance_factor_band") is not None:
+        from .band_report import band_request
+
+        side.prefetch(band_request(doc))    # the helper draws it while this process goes on
     # the NC programs of the new work, each read back, simulated and checked (exit 4 if one disagrees)
-    nc = nc_programs(job=job, webs=webs)
+    nc = nc_programs(job=job, webs=webs, draw=False)
+    if side is not None:
+        for request in backplot_requests(nc.programs):
+            side.prefetch(request)
+    sheet = operations_csv(job=job, doc=doc, webs=webs)
+    drawing = drawing_dxf(job=job, doc=doc, webs=webs)
+    import dataclasses
+
+    nc = dataclasses.replace(nc, programs=tuple(with_backplots(nc.programs)))
     return {
-        "operations.csv": operations_csv(job=job, doc=doc, webs=webs),
-        "drawing.dxf": drawing_dxf(job=job, doc=doc, webs=webs),
+        "operations.csv": sheet,
+        "drawing.dxf": drawing,
         "report.html": report_html(job=job, doc=doc, webs=webs, study=study, study_svg=study_svg, nc=nc),
         **nc.files,
     }

@@ -11,7 +11,8 @@ answer shape, the work is done in-process instead: the sidecar is a speed-up, ne
 
 Protocol: one JSON object per line each way.  {"op": "mesh", ...} -> {"ok": true, "mass": ..., ...};
 {"op": "svg", "study": {...}} -> {"ok": true, "svg": "..."}; {"op": "band_svg", "band": {...},
-"contributions": [...], "tolerance_points": ...} -> {"ok": true, "svg": "..."}; EOF ends the helper.
+"contributions": [...], "tolerance_points": ...} -> {"ok": true, "svg": "..."}; {"op": "backplot", "pickle":
+base64 of the pickled (program, simulated moves)} -> {"ok": true, "svg": "..."}; EOF ends the helper.
 """
 
 from __future__ import annotations
@@ -34,22 +35,74 @@ class Sidecar:
     def __init__(self) -> None:
         self.proc = subprocess.Popen([sys.executable, "-m", "geomgen.sidecar"], stdin=subprocess.PIPE,
                                      stdout=subprocess.PIPE, stderr=subprocess.DEVNULL, text=True, bufsize=1)
+        #: request lines sent ahead whose answers are not read yet, in the order sent (answers come back
+        #: in that order), and answers read but not yet asked for
+        self._pending: list[str] = []
+        self._answers: dict[str, dict | None] = {}
+        self._writer = None          # the thread writing a line sent ahead, while it writes
+        self._broken = False         # a write failed: the helper is gone
 
-    def ask(self, request: dict) -> dict | None:
-        """The helper's answer, or None if it is gone or failed (the caller then does the work itself)."""
+    def _send(self, line: str, *, wait: bool = True) -> bool:
+        """Write one request line.  A long line fills the pipe until the helper reads it (it may still be
+        importing), so a line sent ahead (`wait=False`) is written by a thread; every later write waits
+        for that thread first, which keeps the requests in order."""
+        self._join_writer()
+        if not wait:
+            import threading
+
+            self._writer = threading.Thread(target=self._write, args=(line,), daemon=True)
+            self._writer.start()
+            return True
+        return self._write(line)
+
+    def _write(self, line: str) -> bool:
         try:
-            self.proc.stdin.write(json.dumps(request) + "\n")
+            self.proc.stdin.write(line + "\n")
             self.proc.stdin.flush()
+        except (OSError, ValueError):
+            self._broken = True
+            return False
+        return True
+
+    def _join_writer(self) -> None:
+        if self._writer is not None:
+            self._writer.join()
+            self._writer = None
+
+    def _read(self) -> dict | None:
+        try:
             line = self.proc.stdout.readline()
             answer = json.loads(line) if line else None
         except (OSError, ValueError):
             return None
         return answer if isinstance(answer, dict) and answer.get("ok") else None
 
+    def prefetch(self, request: dict) -> None:
+        """Send a request now and keep its answer for the `ask` of the same request later: the helper
+        works on it while the caller goes on (the study figure, drawn while the solids are built)."""
+        line = json.dumps(request, sort_keys=True)
+        if line not in self._pending and line not in self._answers and self._send(line, wait=False):
+            self._pending.append(line)
+
+    def ask(self, request: dict) -> dict | None:
+        """The helper's answer, or None if it is gone or failed (the caller then does the work itself)."""
+        line = json.dumps(request, sort_keys=True)
+        if line not in self._pending and line not in self._answers:
+            if not self._send(line):
+                return None
+            self._pending.append(line)
+        self._join_writer()
+        if self._broken:
+            return None
+        while line not in self._answers and self._pending:
+            self._answers[self._pending.pop(0)] = self._read()
+        return self._answers.pop(line, None)
+
     def close(self) -> None:
         """End of input: the helper leaves on its own.  Its exit (tearing down scipy and matplotlib)
         takes a few tenths of a second that the caller need not wait for; one that is still there after
         that is killed, so no helper outlives its work for long."""
+        self._join_writer()
         with suppress(OSError):
             self.proc.stdin.close()
         self.proc.stdout.close()
@@ -116,6 +169,15 @@ def _serve() -> None:
                 answer = {"ok": True, "svg": plots.band_svg(request["band"], request["contributions"],
                                                             tolerance_points=request["tolerance_points"],
                                                             title=request.get("title", "")).decode("utf-8")}
+            elif request["op"] == "backplot":
+                import base64
+                import pickle
+
+                from .nc.backplot import svg as backplot_svg
+
+                # the caller's own objects, pickled by the caller: this process trusts only its parent
+                prog, checked = pickle.loads(base64.b64decode(request["pickle"]))
+                answer = {"ok": True, "svg": backplot_svg(prog, checked).decode("utf-8")}
             else:
                 answer = {"ok": False}
         except Exception as exc:  # noqa: BLE001  any failure: the caller does the work itself

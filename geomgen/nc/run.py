@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 
@@ -42,14 +43,42 @@ def nc_programs(*, job, webs, draw: bool = True) -> NCResult:
         if checked is None:
             checked = check(p)
             done.append((same, p, checked))
-        picture = b""
-        if draw:
-            from .backplot import svg
-
-            picture = svg(p, checked)
-        results.append(ProgramResult(p, checked, picture))
+        results.append(ProgramResult(p, checked, b""))
+    if draw:
+        results = with_backplots(results)
     return NCResult(files={p.name: p.text.encode("ascii") for p in progs}, programs=tuple(results),
                     notes=tuple(notes))
+
+
+def backplot_requests(results) -> list[dict]:
+    """The sidecar requests that draw these programs' back-plots (sent ahead by `shop.render`)."""
+    import base64
+    import pickle
+
+    return [{"op": "backplot", "pickle": base64.b64encode(pickle.dumps((r.program, r.checked))).decode()}
+            for r in results]
+
+
+def with_backplots(results) -> list:
+    """The results with their back-plots drawn (by the plan's helper process when one runs)."""
+    return [dataclasses.replace(r, backplot_svg=_backplot(r.program, r.checked, request))
+            for r, request in zip(results, backplot_requests(results))]
+
+
+def _backplot(p, checked, request: dict | None = None) -> bytes:
+    """The back-plot's SVG: drawn by the plan's helper process when there is one (matplotlib is warm
+    there; the program and its simulated moves cross the pipe pickled, and the helper runs the very same
+    `backplot.svg`, so the bytes are the same), else here."""
+    from .. import sidecar
+
+    side = sidecar.active()
+    if side is not None:
+        answer = side.ask(request if request is not None else backplot_requests([ProgramResult(p, checked, b"")])[0])
+        if answer is not None and isinstance(answer.get("svg"), str):
+            return answer["svg"].encode("utf-8")
+    from .backplot import svg
+
+    return svg(p, checked)
 
 
 def _neutral(p) -> str:
