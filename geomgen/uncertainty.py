@@ -415,10 +415,24 @@ def _mode(spec, weigh: bool) -> str:
     return weighing.mode if weighing is not None else ("density" if weigh else "none")
 
 
+
+def _place_inputs(term, add, tol, tag: str, f, depth) -> None:
+    """A drilled feature's x and y (hole_position) and, for a blind one, its depth: `depth` is
+    (the term's key, the words, the nominal mm) or None."""
+    pos = tol.hole_position
+    for axis, value in (("x", f.x), ("y", f.y)):
+        term.keys[axis] = add(Input(f"{tag}: {axis}", f"hole positions (±{pos:g} mm in x and y)",
+                                    "hole_position", value - pos, value + pos, value, "mm",
+                                    tol.source("hole_position")))
+    if depth is not None:
+        key, words, nominal = depth
+        dp = tol.depth
+        term.keys[key] = add(Input(f"{tag}: {words}", f"blind depths (±{dp:g} mm)", "depth",
+                                   nominal - dp, nominal + dp, nominal, "mm", tol.source("depth")))
+
 def _term(f, tag, t0, new, tol, add, plug_key, plug_fit, weighed_plugs, fit_limits):
     """The closed-form term of one feature, its inputs added when it is new work."""
     kind = f.kind
-    pos = tol.hole_position
     if kind == "hole":
         through = bool(f.through)
         k_point = 0.0 if through or f.point_angle >= 180.0 else 1.0 / math.tan(math.radians(0.5 * f.point_angle))
@@ -428,28 +442,14 @@ def _term(f, tag, t0, new, tol, add, plug_key, plug_fit, weighed_plugs, fit_limi
             term.keys["d"] = add(Input(f"{tag}: diameter", f"hole diameters (drill oversize 0..+{a:g} mm)",
                                        "drill_oversize", f.diameter, f.diameter + a, f.diameter, "mm",
                                        f"0 .. +{a:g} mm over the drill ({tol.source('drill_oversize')})"))
-            for axis, value in (("x", f.x), ("y", f.y)):
-                term.keys[axis] = add(Input(f"{tag}: {axis}", f"hole positions (±{pos:g} mm in x and y)",
-                                            "hole_position", value - pos, value + pos, value, "mm",
-                                            tol.source("hole_position")))
-            if not through:
-                dp = tol.depth
-                term.keys["depth"] = add(Input(f"{tag}: depth", f"blind depths (±{dp:g} mm)", "depth",
-                                               f.depth - dp, f.depth + dp, f.depth, "mm", tol.source("depth")))
+            _place_inputs(term, add, tol, tag, f, None if through else ("depth", "depth", f.depth))
         return term
     if kind == "plug":
         through = f.through_web(t0)
         mat = plug_key(f)
         term = _Plug(f.x, f.y, f.diameter, None if through else f.length, mat)
         if new:
-            for axis, value in (("x", f.x), ("y", f.y)):
-                term.keys[axis] = add(Input(f"{tag}: {axis}", f"hole positions (±{pos:g} mm in x and y)",
-                                            "hole_position", value - pos, value + pos, value, "mm",
-                                            tol.source("hole_position")))
-            if not through:
-                dp = tol.depth
-                term.keys["length"] = add(Input(f"{tag}: bore depth", f"blind depths (±{dp:g} mm)", "depth",
-                                                f.length - dp, f.length + dp, f.length, "mm", tol.source("depth")))
+            _place_inputs(term, add, tol, tag, f, None if through else ("length", "bore depth", f.length))
             if f.material is not None and mat not in weighed_plugs:
                 lim = fit_limits(plug_fit, f.diameter)
                 term.keys["bore"] = add(Input(
