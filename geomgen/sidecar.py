@@ -41,6 +41,23 @@ class Sidecar:
         self._answers: dict[str, dict | None] = {}
         self._writer = None          # the thread writing a line sent ahead, while it writes
         self._broken = False         # a write failed: the helper is gone
+        # a thread reads every answer line as it comes, so the helper never waits on a full pipe while
+        # this process is still writing it a long request (which would wait on the helper: a deadlock)
+        import queue
+        import threading
+
+        self._lines: queue.Queue = queue.Queue()
+        threading.Thread(target=self._drain, daemon=True).start()
+
+    def _drain(self) -> None:
+        try:
+            for line in self.proc.stdout:
+                self._lines.put(line)
+        except (OSError, ValueError):
+            pass
+        with suppress(OSError):
+            self.proc.stdout.close()
+        self._lines.put("")          # end of output: the helper is gone
 
     def _send(self, line: str, *, wait: bool = True) -> bool:
         """Write one request line.  A long line fills the pipe until the helper reads it (it may still be
@@ -70,10 +87,13 @@ class Sidecar:
             self._writer = None
 
     def _read(self) -> dict | None:
+        line = self._lines.get()
+        if not line:
+            self._lines.put("")      # every later read sees the end too
+            return None
         try:
-            line = self.proc.stdout.readline()
-            answer = json.loads(line) if line else None
-        except (OSError, ValueError):
+            answer = json.loads(line)
+        except ValueError:
             return None
         return answer if isinstance(answer, dict) and answer.get("ok") else None
 
@@ -105,7 +125,6 @@ class Sidecar:
         self._join_writer()
         with suppress(OSError):
             self.proc.stdin.close()
-        self.proc.stdout.close()
         if self.proc.poll() is None:
             import threading
 

@@ -39,3 +39,33 @@ def test_a_failing_helper_answers_none():
         assert side.ask({"op": "mesh", "stl": "/nonexistent.stl", "density": 7.85}) is None
         assert side.ask({"op": "no such thing"}) is None
     assert sidecar.active() is None
+
+
+def test_requests_sent_ahead_and_long_answers_do_not_deadlock():
+    # two study figures (answers of some 40 kB each, together more than a 64 kB pipe holds) sent ahead,
+    # then asked for in the other order: the answers must be the very bytes plots.study_svg draws here,
+    # within a minute
+    import threading
+
+    from geomgen.plots import study_svg
+
+    from conftest import minimal_job_dict
+
+    first = geomgen.study(minimal_job_dict())
+    second = geomgen.study(minimal_job_dict({"name": "second"}))
+    got = {}
+
+    def run():
+        with sidecar.started() as side:
+            side.prefetch({"op": "svg", "study": first})
+            side.prefetch({"op": "svg", "study": second})
+            got["second"] = side.ask({"op": "svg", "study": second})
+            got["first"] = side.ask({"op": "svg", "study": first})
+
+    worker = threading.Thread(target=run, daemon=True)
+    worker.start()
+    worker.join(timeout=60)
+    assert not worker.is_alive(), "the sidecar deadlocked"
+    assert len(got["first"]["svg"]) + len(got["second"]["svg"]) > 65536
+    assert got["first"]["svg"].encode() == study_svg(first)
+    assert got["second"]["svg"].encode() == study_svg(second)
