@@ -453,7 +453,7 @@ def _inspect_job(path: Path) -> dict:
         bare = section.massprops()
         rows, changes = [], []
         for f in (f.on(section) for f in web.features):
-            change = f.massprops(thickness=section.thickness, web_density=section.density_g_cm3)
+            change = section.change(f)
             row = {"feature": f.to_table(), "label": f.label(), "change": change_figures(change)}
             if f.fills:
                 row["plug_density_g_cm3"] = f.plug_density()

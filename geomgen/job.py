@@ -144,6 +144,9 @@ class WebSpec:
     pin_inner_diameter: float = 0.0        # the crankpin's own bore, mm (0 = solid pin)
     pin_material: Material | None = None   # the crankpin's material (None = the web's)
     shaft_diameter: float = 0.0            # an integral mainshaft where main_bore = 0: nothing new is cut there
+    model: Path | None = None              # ... or the designer's own 3D model (a STEP solid)
+    model_units: str | None = None         # the model's length unit when the STEP declares none
+    model_rotate_deg: float = 0.0          # the model turned about Z by this first, deg counter-clockwise
     weighing: object | None = None         # calibrate.Weighing: what the builder weighed and measured
     calibration: object | None = None      # calibrate.Calibration: the web fitted to its weighed mass
 
@@ -226,7 +229,7 @@ _ENGINE = {"stroke", "rod_length", "max_rpm", "balance_factor", "cylinder_tilt",
 _BALANCER = {"share", "offset"}
 _WEB = {"diameter", "outline", "outline_units", "outline_gap", "thickness", "material", "density", "pin_bore",
         "main_bore", "features", "pin_interference", "pin_inner_diameter", "pin_material", "shaft_diameter",
-        "weighed", "calibrate", "measured_unbalance", "measured_angle"}
+        "weighed", "calibrate", "measured_unbalance", "measured_angle", "model", "model_units", "model_rotate_deg"}
 #: the keys of what the builder weighed and measured on one web (geomgen.calibrate)
 _WEIGHING = ("weighed", "calibrate", "measured_unbalance", "measured_angle")
 _WEBS = _WEB | {"name", "share"}
@@ -364,12 +367,21 @@ def _resolve_material(t: dict, where: str) -> Material:
 
 def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Path,
          plug_material: Material | None) -> WebSpec:
-    has_d, has_o = "diameter" in t, "outline" in t
-    if has_d == has_o:
-        raise BadInput(f"{where}: give exactly one of 'diameter' (a full-circle web) or 'outline' (a DXF file)")
-    thickness = _number(t, "thickness", where, "length", lo=0.0, lo_open=True, hi=200.0)
+    has_d, has_o, has_m = "diameter" in t, "outline" in t, "model" in t
+    if has_d + has_o + has_m != 1:
+        raise BadInput(f"{where}: give exactly one of 'diameter' (a full-circle web), 'outline' (a DXF file) "
+                       "or 'model' (a STEP solid)")
     pin_bore = _number(t, "pin_bore", where, "length", lo=0.0, lo_open=True)
     main_bore = _number(t, "main_bore", where, "length", default=0.0, lo=0.0)
+    model = model_units = None
+    model_rotate = 0.0
+    if has_m:
+        model, model_units, model_rotate, thickness = _model(t, where, engine, base, pin_bore, main_bore)
+    else:
+        for key in ("model_units", "model_rotate_deg"):
+            if key in t:
+                raise BadInput(f"{where}.{key}: only for a web given as a model (model = \"web.step\")")
+        thickness = _number(t, "thickness", where, "length", lo=0.0, lo_open=True, hi=200.0)
     # a web with no main bore carries its mainshaft there: as thick as the crankpin unless the job says
     # (common practice, from memory); 0 = the web is free at its centre
     shaft = _number(t, "shaft_diameter", where, "length", default=0.0 if main_bore else pin_bore, lo=0.0)
@@ -382,7 +394,9 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
                        f"at {r:g} mm from the axis; need main_bore/2 + pin_bore/2 < stroke/2")
     diameter = outline = units = None
     gap = OUTLINE_GAP_MM
-    if has_d:
+    if has_m:
+        pass
+    elif has_d:
         diameter = _number(t, "diameter", where, "length", lo=0.0, lo_open=True)
         if r + pin_bore / 2 >= diameter / 2:
             raise BadInput(f"{where}.pin_bore: the {pin_bore:g} mm crankpin bore at {r:g} mm from the axis does not "
@@ -414,7 +428,7 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
     fit, pin_inner, pin_material = _press_fit(t, where, pin_bore, web_material)
     spec = WebSpec(name=name, thickness=thickness, material=web_material, pin_bore=pin_bore,
                    main_bore=main_bore, diameter=diameter, outline=outline, outline_units=units, outline_gap=gap,
-                   shaft_diameter=shaft,
+                   model=model, model_units=model_units, model_rotate_deg=model_rotate, shaft_diameter=shaft,
                    features=features, share=share, pin_interference=fit, pin_inner_diameter=pin_inner,
                    pin_material=pin_material)
     if any(k in t for k in _WEIGHING):
@@ -428,6 +442,28 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
 
         spec = calibrate_web(spec, read_weighing(t, where), stroke=engine.stroke, rebuild=rebuild, where=where)
     return spec
+
+
+def _model(t: dict, where: str, engine: Engine, base: Path, pin_bore: float, main_bore: float):
+    """(path, model_units, model_rotate_deg, thickness) of a web given as a STEP model; the model is read
+    and checked against the job here (geomgen.model3d), so a bad model is refused as the job loads."""
+    for key in ("thickness", "outline_units", "outline_gap"):
+        if key in t:
+            raise BadInput(f"{where}.{key}: a web given as a model takes its shape from the model; leave {key} out")
+    if not isinstance(t["model"], str):
+        raise BadInput(f"{where}.model: must be a path to a STEP file, got {t['model']!r}")
+    path = (base / t["model"]).resolve()
+    if not path.is_file():
+        raise BadInput(f"{where}.model: file not found: {path}")
+    from .model3d import MODEL_UNITS_MM, load_model
+
+    units = t.get("model_units")
+    if units is not None and units not in MODEL_UNITS_MM:
+        raise BadInput(f"{where}.model_units: must be {', '.join(repr(u) for u in MODEL_UNITS_MM)}, got {units!r}")
+    rotate = _number(t, "model_rotate_deg", where, "angle", default=0.0, lo=-360.0, hi=360.0)
+    model = load_model(path, units=units, rotate_deg=rotate, stroke=engine.stroke, pin_bore=pin_bore,
+                       main_bore=main_bore, where=where)
+    return path, units, rotate, model.z_top
 
 
 def _press_fit(t: dict, where: str, pin_bore: float, web_material: Material):
@@ -473,10 +509,19 @@ def _webs(data: dict, engine: Engine, base: Path, plug_material: Material | None
             raise BadInput(f"{where}.name: {name!r} is used twice")
         names.add(name)
         merged = {**defaults, **{k: v for k, v in t.items() if k not in ("name", "share")}}
-        if "diameter" in t and "outline" not in t:
-            merged.pop("outline", None)
-        if "outline" in t and "diameter" not in t:
-            merged.pop("diameter", None)
+        # a web that names its own shape (diameter, outline or model) drops the others [web] gives
+        shapes = ("diameter", "outline", "model")
+        own = [k for k in shapes if k in t]
+        if len(own) == 1:
+            for k in shapes:
+                if k != own[0]:
+                    merged.pop(k, None)
+            if own[0] == "model":
+                for k in ("thickness", "outline_units", "outline_gap"):
+                    merged.pop(k, None)
+            else:
+                for k in ("model_units", "model_rotate_deg"):
+                    merged.pop(k, None)
         if "density" in t and "material" not in t:
             merged.pop("material", None)
         if "material" in t and "density" not in t:

@@ -20,7 +20,7 @@ from . import __version__
 from .calibrate import calibration_figures
 from .crank import crank_figures, plug_density_range
 from .errors import BadInput
-from .features import feature_from_table, feature_massprops, feature_to_table
+from .features import feature_from_table, feature_to_table
 from .massprops import MassProps
 from .rounding import fine, num, vec
 from .safety import safety_figures
@@ -56,10 +56,17 @@ def feature_rows(features, section) -> list[dict]:
     for f in features:
         t = feature_to_table(f)
         t = {k: (num(v) if isinstance(v, float) else v) for k, v in t.items()}
-        fx = feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3)
+        fx = section.change(f)
         t["effect"] = {"mass_g": fine(fx.mass), "unbalance_gmm": [fine(v) for v in fx.unbalance]}
         rows.append(t)
     return rows
+
+
+def _outline_entry(spec):
+    """Where the web's shape comes from: a DXF path, a diameter, or a model (its path and turn)."""
+    if spec.model is not None:
+        return {"model": str(spec.model), "model_rotate_deg": num(spec.model_rotate_deg)}
+    return str(spec.outline) if spec.outline else {"diameter_mm": num(spec.diameter)}
 
 
 def plan_document(job, command: str, webs: list, verified: list[dict] | None, study_result: dict | None,
@@ -84,7 +91,7 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
             "thickness_mm": num(w.section.thickness),
             "material": w.spec.material.name,
             "density_g_cm3": num(w.section.density_g_cm3),
-            "outline": str(w.spec.outline) if w.spec.outline else {"diameter_mm": num(w.spec.diameter)},
+            "outline": _outline_entry(w.spec),
             "pin_bore_mm": num(w.spec.pin_bore),
             "main_bore_mm": num(w.spec.main_bore),
             "share": num(w.spec.share),

@@ -830,8 +830,7 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
         limits = replace(limits, through=False)
         through_note = (f"; no through holes: the {thickness:g} mm web is deeper than max_depth "
                         f"{limits.max_depth:g} mm")
-    before = section.massprops() + _total(existing, thickness=thickness, web_density=web_density,
-                                          plug_density=plug_density)
+    before = section.massprops() + sum((section.change(f) for f in existing), MassProps.zero())
     need_vec = np.asarray(target, dtype=float) - before.unbalance
     need = float(np.linalg.norm(need_vec))
     if need <= tolerance and lighten <= 0:

@@ -78,6 +78,15 @@ class WebSection:
         """The web as a uniform prism from z = 0 to `thickness` (no features)."""
         return prism(self.area_moments(), z0=0.0, z1=self.thickness, density_g_cm3=self.density_g_cm3)
 
+    def column(self, feature) -> tuple[float, float]:
+        """(z_bot, z_top): where a feature meets the web's two faces (a prism: 0 and the thickness)."""
+        return (0.0, self.thickness)
+
+    def change(self, feature, plug_density: float | None = None) -> MassProps:
+        """The change a feature makes to this web (the kind's closed forms on the prism)."""
+        return feature.massprops(thickness=self.thickness, web_density=self.density_g_cm3,
+                                 plug_density=plug_density)
+
     def polygon(self, max_chord_mm: float = POLYGON_CHORD_MM) -> shapely.Polygon:
         """The section as a shapely Polygon with the bores as interiors
         (flattened, inscribed: slightly smaller than the exact section)."""

@@ -117,12 +117,15 @@ def check_features(section, features, *, name: str, min_wall: float = 0.0, pin_w
 # kernel shapes
 # --------------------------------------------------------------------------
 
-def _tools_and_plugs(features, thickness: float):
-    """Every feature's cutting tool, and the plugs that fill theirs (each kind makes its own)."""
+def _tools_and_plugs(features, section):
+    """Every feature's cutting tool, and the plugs that fill theirs (each kind makes its own), each at the
+    faces it enters (a prism's two faces; on a model, its column's)."""
+    from .model3d import placed_filler, placed_tool
+
     tools, plugs = [], []
     for i, f in enumerate(features):
-        tools.append(f.tool(thickness))
-        filler = f.filler(thickness)
+        tools.append(placed_tool(section, f))
+        filler = placed_filler(section, f)
         if filler is not None:
             plugs.append(PlugSolid(filler, f.plug_density(), i, f"{PLUG}-{len(plugs) + 1}"))
     return tools, plugs
@@ -135,6 +138,9 @@ def body_shape(section):
 
     from .kinds._tools import loop_wire
 
+    model = getattr(section, "model", None)
+    if model is not None:
+        return cq.Solid(model.shape)
     outer = loop_wire(section.outer.oriented(True))
     inner = [loop_wire(b.oriented(False)) for b in section.bores]
     return cq.Solid.extrudeLinear(outer, inner, cq.Vector(0, 0, float(section.thickness)))
@@ -178,13 +184,19 @@ def build_web(section, features=(), *, name: str, min_wall: float = 0.0, pin_wal
     new feature short of the walls.
     """
     features = tuple(features)
-    _, short = measure_walls(section, features, name=name, min_wall=min_wall, pin_wall=pin_wall,
-                             existing=existing)
+    if getattr(section, "model", None) is not None:
+        from .model3d import model_walls
+
+        short = model_walls(section, features, name=name, min_wall=min_wall, pin_wall=pin_wall,
+                            existing=existing).shortfalls
+    else:
+        _, short = measure_walls(section, features, name=name, min_wall=min_wall, pin_wall=pin_wall,
+                                 existing=existing)
     t = float(section.thickness)
     body = body_shape(section)
     plugs: list[PlugSolid] = []
     if features:
-        tools, plugs = _tools_and_plugs(features, t)
+        tools, plugs = _tools_and_plugs(features, section)
         body = _one_solid(body.cut(*tools), name=name)
         if clean:
             body = _one_solid(_cleaned(body), name=name)

@@ -4,7 +4,6 @@ and the change a list of features makes.  No CAD kernel.
 
 from __future__ import annotations
 
-from .features import feature_massprops
 from .massprops import MassProps
 from .planner import Limits
 
@@ -14,6 +13,14 @@ def web_section(job, web):
     from .section import outline_web, parametric_web
 
     where = f"web {web.name}"
+    if web.model is not None:
+        from .model3d import load_model, model_section
+
+        model = load_model(web.model, units=web.model_units, rotate_deg=web.model_rotate_deg,
+                           stroke=job.engine.stroke, pin_bore=web.pin_bore, main_bore=web.main_bore,
+                           where=where)
+        return model_section(model, density_g_cm3=web.density, stroke=job.engine.stroke, pin_bore=web.pin_bore,
+                             main_bore=web.main_bore)
     if web.diameter is not None:
         return parametric_web(diameter=web.diameter, thickness=web.thickness, density_g_cm3=web.density,
                               stroke=job.engine.stroke, pin_bore=web.pin_bore, main_bore=web.main_bore,
@@ -33,8 +40,7 @@ def limits_of(job) -> Limits:
 
 def features_massprops(features, section) -> MassProps:
     """The change the features make to the bare web (each plug with its own material)."""
-    return sum((feature_massprops(f, thickness=section.thickness, web_density=section.density_g_cm3)
-                for f in features), MassProps.zero())
+    return sum((section.change(f) for f in features), MassProps.zero())
 
 
 def keep_out_of(job, web) -> tuple:

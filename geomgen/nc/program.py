@@ -573,6 +573,12 @@ def programs(job, webs) -> tuple[list[NCProgram], list[str]]:
     for work in webs:
         first = len(work.existing) + 1
         numbered = list(enumerate(work.plan.features, start=first))
+        if any(work.section.column(f) != (0.0, work.section.thickness) for _, f in numbered):
+            # a model's faces are not one plane each: a program zeroed on one face would cut air or the
+            # part elsewhere, so a model web's work is cut from the sheet (each depth from its own face)
+            notes.append(f"web {work.spec.name} is a 3D model: its faces stand at several heights, so no "
+                         "program is written for it; cut it from the sheet, each depth from the face it enters")
+            continue
         for face in ("outer", "inner"):
             mine = [(n, f) for n, f in numbered if f.kind in FACE_KINDS and f.face == face]
             if mine:
