@@ -76,7 +76,8 @@ def web_rows(web, entry: dict, *, drill_series: str, default_plug_density: float
     statuses = ["existing"] * len(web.existing) + ["new"] * (len(tables) - len(web.existing))
     out: dict[str, list[Row]] = {}
     for step, (feature, table, status) in enumerate(zip(web.all_features, tables, statuses), start=1):
-        row = feature_row(feature, step=step, status=status, table=table, thickness=web.section.thickness,
+        row = feature_row(feature, step=step, status=status, table=table,
+                          thickness=web.section.column_thickness(feature),
                           drill_series=drill_series, default_plug_density=default_plug_density,
                           plug_fit=plug_fit)
         out.setdefault(row.kind, []).append(row)

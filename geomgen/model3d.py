@@ -562,11 +562,22 @@ class ModelWalls:
         return min((w[2] for w in self.walls), default=math.inf)
 
 
-def _distance(a, b) -> float:
+def _box_gap(a, b) -> float:
+    """The distance between two shapes' bounding boxes, mm: no more than the shapes' own distance."""
+    p, q = _box(a), _box(b)
+    gaps = [max(0.0, q[i] - p[i + 3], p[i] - q[i + 3]) for i in range(3)]
+    return math.sqrt(sum(g * g for g in gaps))
+
+
+def _distance(a, b, enough: float = math.inf) -> float:
+    """The least distance between two shapes, mm (OpenCascade BRepExtrema); a pair whose bounding boxes
+    are already more than `enough` apart gives that box gap, a lower bound that clears the wall."""
     from OCP.BRepExtrema import BRepExtrema_DistShapeShape
 
+    gap = _box_gap(a, b)
+    if gap > enough:
+        return gap
     d = BRepExtrema_DistShapeShape(a, b)
-    d.Perform()
     if not d.IsDone():
         return math.nan
     return d.Value()
@@ -602,12 +613,24 @@ def model_walls(section: ModelSection, features, *, name: str, min_wall: float =
     """Every feature's walls on the model, measured between its placed tool and the model's faces it does
     not enter, and between tools.  A new feature short of min_wall (pin_wall to the crankpin bore) is
     refused (BadInput), an existing one warned; a tool that meets a face other than the faces it enters
-    breaks out of the web and is refused either way."""
+    breaks out of the web and is refused either way.  Walls more than twice the rule are given as the
+    gap of the bounding boxes (a lower bound); nearer ones are measured exactly."""
+    features = tuple(features)
+    key = ("walls", features, float(min_wall), float(pin_wall), existing if isinstance(existing, int)
+           else frozenset(existing))
+    cache = section.model._cache
+    if key not in cache:
+        cache[key] = _model_walls(section, features, name=name, min_wall=min_wall, pin_wall=pin_wall,
+                                  existing=existing)
+    return cache[key]
+
+
+def _model_walls(section, features, *, name, min_wall, pin_wall, existing) -> ModelWalls:
     from .walls import MIN_SOLID_WALL_MM, WallShortfall, existing_set
 
-    features = tuple(features)
     ex = existing_set(existing, len(features))
     need_all = max(float(min_wall), MIN_SOLID_WALL_MM)
+    enough = 2.0 * max(need_all, float(pin_wall))
     faces = _face_names(section)
     tools = [_shape_of(placed_tool(section, f)) for f in features]
     walls, short = [], []
@@ -630,7 +653,7 @@ def model_walls(section: ModelSection, features, *, name: str, min_wall: float =
         enters = {z for z in (z0, z1) if lo <= z + 1e-6 and hi >= z - 1e-6}
         nearest: dict[str, float] = {}
         for face, what, z in faces:
-            d = _distance(tool, face)
+            d = _distance(tool, face, enough)
             if d < 1e-7 and ((z is not None and any(abs(z - e) < 1e-6 for e in enters))
                              or (z is None and f.opens_rim and what == "the rim or a side face")):
                 continue  # a face the feature is cut from
@@ -638,7 +661,7 @@ def model_walls(section: ModelSection, features, *, name: str, min_wall: float =
         for what, d in sorted(nearest.items()):
             judge(i, f, what, d, what == "the crankpin bore")
         for j in range(i):
-            judge(i, f, f"feature {j + 1} ({features[j].kind})", _distance(tool, tools[j]), False)
+            judge(i, f, f"feature {j + 1} ({features[j].kind})", _distance(tool, tools[j], enough), False)
     return ModelWalls(tuple(walls), tuple(short))
 
 

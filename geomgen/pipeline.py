@@ -73,13 +73,20 @@ def plan_webs(job, *, existing=None, targets=None, tolerances=None, method=None,
                                twin.plan.why + f" (web {web.name} is the same web with the same layout; see the "
                                "crank's couple for what the pair leaves)", twin.plan.binding, twin.plan.considered)
             else:
-                plan = plan_web(name=web.name, section=section, existing=feats, target=target, tolerance=tol,
+                planner = plan_web if getattr(section, "model", None) is None else _plan_model
+                plan = planner(name=web.name, section=section, existing=feats, target=target, tolerance=tol,
                                 method=method or c.kind, limits=limits, plug_material=c.plug_material,
                                 keep_out=keep_out_of(job, web), lighten=c.lighten if lighten is None else lighten)
         work = WebWork(web, section, feats, plan)
         out.append(work)
         done.append(work)
     return out
+
+
+def _plan_model(**kw) -> WebPlan:
+    from .plan_model import plan_model_web
+
+    return plan_model_web(**kw)
 
 
 # ------------------------------------------------------------------ solids

@@ -82,6 +82,11 @@ class WebSection:
         """(z_bot, z_top): where a feature meets the web's two faces (a prism: 0 and the thickness)."""
         return (0.0, self.thickness)
 
+    def column_thickness(self, feature) -> float:
+        """How much web the feature's drill meets between its two faces, mm (a prism: the thickness)."""
+        z0, z1 = self.column(feature)
+        return z1 - z0
+
     def change(self, feature, plug_density: float | None = None) -> MassProps:
         """The change a feature makes to this web (the kind's closed forms on the prism)."""
         return feature.massprops(thickness=self.thickness, web_density=self.density_g_cm3,

@@ -180,7 +180,7 @@ def sheet_rows(*, job, doc: dict, webs) -> list[dict]:
         for number, ((status, feature), table) in enumerate(zip(features, tables), start=1):
             rho = _plug_density(feature, job)
             rows.append(feature_row(feature, web=w.spec.name, number=number, status=status,
-                                    effect=table["effect"], thickness=w.section.thickness, units=units,
+                                    effect=table["effect"], thickness=w.section.column_thickness(feature), units=units,
                                     correction=job.correction, plug_density=rho))
     return rows
 
