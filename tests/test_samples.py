@@ -41,8 +41,13 @@ PER_WEB = {"heavier-piston": 8608.7, "lighter-piston-teardrop": 9187.64, "plugs-
            "lightening": 10493.5, "radial-rim": 8478.5}
 
 
+#: samples whose web is a STEP model made by samples/make_model_webs.py: the model and its job's web keys are
+#: checked in tests/test_model_webs.py; the job's study and plan belong in HAND once the job reader takes `model`
+MODEL_SAMPLES = {"model-web"}
+
+
 def test_every_sample_is_covered():
-    assert sorted(p.stem for p in SAMPLES.glob("*.toml")) == sorted(HAND)
+    assert sorted(p.stem for p in SAMPLES.glob("*.toml")) == sorted(set(HAND) | MODEL_SAMPLES)
 
 
 @pytest.mark.parametrize("name", sorted(HAND))
