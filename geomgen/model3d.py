@@ -427,8 +427,37 @@ def _columns(solid, *, where) -> tuple[list[Column], Loop]:
                                               tuple(Loop.from_points(np.asarray(r.coords)).oriented(True)
                                                     for r in g.interiors), b[1], t[1], exact=False))
     columns.sort(key=lambda c: (-c.outer.area, c.z_bot, -c.z_top))
-    biggest = max(faces, key=lambda f: f[2].area)
-    return columns, biggest[2]
+    return columns, _silhouette(solid, max(faces, key=lambda f: f[2].area)[2])
+
+
+def _silhouette(solid, largest: Loop) -> Loop:
+    """The model's outline seen along Z: the union of its faces' triangles, projected.  Where that is the
+    outline of its largest flat face (a prism, a stepped web), that face's exact loop is kept."""
+    import shapely
+    from OCP.BRep import BRep_Tool
+    from OCP.BRepMesh import BRepMesh_IncrementalMesh
+    from OCP.TopLoc import TopLoc_Location
+
+    BRepMesh_IncrementalMesh(solid, 0.5 * FACE_CHORD_MM, False, 0.1, True)
+    tris = []
+    for face in _faces(solid):
+        loc = TopLoc_Location()
+        tri = BRep_Tool.Triangulation_s(face, loc)
+        if tri is None:
+            continue
+        trsf = loc.Transformation()
+        pts = [tri.Node(i).Transformed(trsf) for i in range(1, tri.NbNodes() + 1)]
+        xy = np.array([(p.X(), p.Y()) for p in pts])
+        idx = np.array([tri.Triangle(i).Get() for i in range(1, tri.NbTriangles() + 1)]) - 1
+        tris.extend(shapely.polygons(xy[idx]))
+    shape = shapely.union_all([t for t in tris if t.area > 0]).buffer(0)
+    if shape.geom_type != "Polygon":
+        shape = max(shape.geoms, key=lambda g: g.area)
+    outline = shapely.Polygon(shape.exterior)
+    exact = shapely.Polygon(largest.points(FACE_CHORD_MM))
+    if outline.symmetric_difference(exact).area <= 2 * FACE_CHORD_MM * exact.length:
+        return largest
+    return Loop.from_points(np.asarray(outline.exterior.coords)).oriented(True)
 
 
 # ------------------------------------------------------------------ the section geomgen plans on

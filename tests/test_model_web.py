@@ -1,0 +1,278 @@
+"""A web given as the designer's own 3D model (geomgen.model3d, geomgen.plan_model).
+
+The webs are the invented ones of samples/make_model_webs.py (a boss, a chamfered rim, a rod-clearance
+recess, a thinner counterweight lobe, and a plain prism), built with the kernel and written to STEP.  The
+checks on a plan's result do not use geomgen's own measurements: the exported STEP is read back with
+OpenCascade's plain STEPControl_Reader and integrated by GProp, the STL by trimesh, depths by rays cast
+along each feature's axis through the model and the result (IntCurvesFace_ShapeIntersector), walls by
+BRepExtrema between a cylinder the test builds itself and the model's faces.
+"""
+
+from __future__ import annotations
+
+import importlib.util
+import math
+import tomllib
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from geomgen import api
+from geomgen.cli import main
+from geomgen.errors import BadInput
+
+pytestmark = pytest.mark.cad
+
+SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+STROKE, PIN, MAIN = 60.0, 20.0, 22.0
+
+
+def _maker():
+    spec = importlib.util.spec_from_file_location("make_model_webs", SAMPLES / "make_model_webs.py")
+    mod = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mod)
+    return mod
+
+
+MAKER = None
+
+
+@pytest.fixture(scope="module")
+def folder(tmp_path_factory):
+    global MAKER
+    MAKER = _maker()
+    out = tmp_path_factory.mktemp("models")
+    for name in ("prism", "boss", "chamfered", "recessed", "lobe"):
+        MAKER.write_step(MAKER.WEBS[name](), out / f"{name}.step", name=name)
+    MAKER.write_bad_models(out)
+    return out
+
+
+def _job(path, kind="holes", bf=None, **web) -> dict:
+    """The shipped sample's engine and correction (invented data) on another model."""
+    job = tomllib.loads((SAMPLES / "model-web.toml").read_text())
+    if bf is not None:
+        job["engine"]["balance_factor"] = bf
+    job["web"] = {**job["web"], "model": str(path), **web}
+    job["correction"] = {**job["correction"], "kind": kind}
+    return job
+
+
+def _read_step_solids(path):
+    from OCP.IFSelect import IFSelect_RetDone
+    from OCP.STEPControl import STEPControl_Reader
+    from OCP.TopAbs import TopAbs_SOLID
+    from OCP.TopExp import TopExp_Explorer
+
+    r = STEPControl_Reader()
+    assert r.ReadFile(str(path)) == IFSelect_RetDone
+    r.TransferRoots()
+    exp, out = TopExp_Explorer(r.OneShape(), TopAbs_SOLID), []
+    while exp.More():
+        out.append(exp.Current())
+        exp.Next()
+    return out
+
+
+def _gprop(shape):
+    from OCP.BRepGProp import BRepGProp
+    from OCP.GProp import GProp_GProps
+
+    p = GProp_GProps()
+    BRepGProp.VolumeProperties_s(shape, p, 1e-11)
+    c = p.CentreOfMass()
+    return p.Mass(), np.array([c.X(), c.Y(), c.Z()])
+
+
+def _ray_hits(shape, x, y) -> list[float]:
+    """The z of every crossing of the vertical line through (x, y) with the shape's faces, sorted."""
+    from OCP.gp import gp_Dir, gp_Lin, gp_Pnt
+    from OCP.IntCurvesFace import IntCurvesFace_ShapeIntersector
+
+    inter = IntCurvesFace_ShapeIntersector()
+    inter.Load(shape, 1e-7)
+    inter.Perform(gp_Lin(gp_Pnt(x, y, -100.0), gp_Dir(0, 0, 1)), -1e9, 1e9)
+    return sorted(inter.Pnt(i).Z() for i in range(1, inter.NbPnt() + 1))
+
+
+# ------------------------------------------------------------------ the model as the job's base
+@pytest.mark.parametrize("name", ["prism", "boss", "chamfered", "recessed", "lobe"])
+def test_base_properties_are_the_solid_s(folder, name):
+    """The web's mass and unbalance from the model against the hand-worked volume and centroid of the
+    maker (cylinders, annuli, circular segments; chamfer rings by Pappus's theorem), steel 7.85 g/cm^3
+    (the job's material)."""
+    from geomgen.webs import web_section
+
+    job = api.load_job(_job(folder / f"{name}.step"))
+    sec = web_section(job, job.webs[0])
+    volume, centroid = MAKER.expected(name)
+    rho = job.webs[0].density * 1e-3
+    mp = sec.massprops()
+    assert mp.mass == pytest.approx(rho * volume, rel=1e-9)
+    assert mp.unbalance[1] == pytest.approx(rho * volume * centroid[1], rel=1e-8, abs=1e-6)
+    # the model's height: the boss stands to z = 20, every other web is 18 mm at its thickest (the maker)
+    assert sec.thickness == pytest.approx(20.0 if name == "boss" else 18.0, abs=1e-9)
+
+
+def test_prism_model_plans_as_the_parametric_web(folder):
+    """A prism given as a model plans exactly as the same web given by diameter and thickness (the
+    parametric route is the reference): same features to 1e-6 mm, same predicted unbalance to 1e-6."""
+    as_model = api.plan(_job(folder / "prism.step"))
+    job = _job(folder / "prism.step")
+    job["web"] = {k: v for k, v in job["web"].items() if k != "model"}
+    job["web"].update(diameter=130.0, thickness=18.0)
+    job["correction"]["max_depth"] = 18.0
+    as_model = api.plan(_job(folder / "prism.step") | {"correction": job["correction"]})
+    parametric = api.plan(job)
+    for a, b in zip(as_model.document["webs"], parametric.document["webs"], strict=True):
+        assert len(a["planned_features"]) == len(b["planned_features"]) > 0
+        for fa, fb in zip(a["planned_features"], b["planned_features"], strict=True):
+            for key in ("x", "y", "diameter", "depth"):
+                assert fa[key] == pytest.approx(fb[key], abs=1e-6)
+        ua, ub = np.array(a["predicted"]["unbalance_gmm"]), np.array(b["predicted"]["unbalance_gmm"])
+        assert np.linalg.norm(ua - ub) <= 1e-6 * np.linalg.norm(ub)
+
+
+# ------------------------------------------------------------------ bad models: one line, exit 2
+BAD = [
+    ("open-shell.step", {}, "no solid"),
+    ("two-solids.step", {}, "2 solids"),
+    ("wrong-frame.step", {}, "lowest point is at z = -9"),
+    ("pin-off-stroke.step", {}, "no crankpin bore"),
+    ("pin-on-x.step", {}, "model_rotate_deg = 90"),
+    ("no-length-unit.step", {}, "model_units"),
+]
+
+
+@pytest.mark.parametrize("file, extra, words", BAD)
+def test_bad_model_one_line_exit_2_nothing_written(folder, tmp_path, capsys, file, extra, words):
+    text = (SAMPLES / "model-web.toml").read_text()
+    text = text.replace('model = "model-web.step"', f'model = "{(folder / file).as_posix()}"')
+    assert str(folder) in text
+    path = tmp_path / "job.toml"
+    path.write_text(text)
+    out = tmp_path / "out"
+    code = main(["plan", str(path), "--out", str(out)])
+    err = capsys.readouterr().err
+    lines = err.strip().splitlines()
+    assert code == 2
+    assert len(lines) == 1 and lines[0].startswith("geomgen: ") and "Traceback" not in err
+    assert words in lines[0]
+    assert not out.exists()
+
+
+def test_rotation_and_units_bring_a_model_into_the_frame(folder):
+    """pin-on-x.step is the prism turned -90 deg: model_rotate_deg = 90 gives the prism's own base to
+    1e-9 (GProp on both).  The unitless file read as mm is the prism; read as inches its volume is
+    25.4^3 times larger (a length scaled by 25.4)."""
+    from geomgen.webs import web_section
+
+    def base(**web):
+        job = api.load_job(_job(**web))
+        return web_section(job, job.webs[0]).massprops()
+
+    ref = base(path=folder / "prism.step")
+    turned = base(path=folder / "pin-on-x.step", model_rotate_deg=90)
+    assert turned.mass == pytest.approx(ref.mass, rel=1e-9)
+    assert np.allclose(turned.unbalance, ref.unbalance, rtol=0, atol=1e-6 * abs(ref.unbalance[1]))
+    mm = base(path=folder / "no-length-unit.step", model_units="mm")
+    assert mm.mass == pytest.approx(ref.mass, rel=1e-9)
+    with pytest.raises(BadInput, match="file that declares none"):
+        base(path=folder / "prism.step", model_units="in")
+    inch = api.load_job(_job(folder / "no-length-unit.step", model_units="in"))
+    assert inch.webs[0].thickness == pytest.approx(18.0 * 25.4, rel=1e-9) or inch.webs[0].thickness > 400
+
+
+def test_a_model_is_one_of_three_shapes(folder):
+    with pytest.raises(BadInput, match="exactly one of 'diameter'"):
+        api.load_job(_job(folder / "prism.step", diameter=130.0))
+    with pytest.raises(BadInput, match="thickness"):
+        api.load_job(_job(folder / "prism.step", thickness=18.0))
+
+
+# ------------------------------------------------------------------ plans held to the exported result
+CASES = [("boss", "holes"), ("chamfered", "holes"), ("recessed", "plugs"),
+         ("boss", "pockets"), ("chamfered", "plugs")]
+
+
+@pytest.mark.parametrize("name, kind", CASES)
+def test_plan_on_a_model_checked_on_its_files(folder, tmp_path, name, kind):
+    model = folder / f"{name}.step"
+    job = _job(model, kind=kind)
+    plan = api.plan(job)
+    written = plan.verify().write(tmp_path / "out")
+    assert "web-a.step" in [Path(p).name for p in written]
+    doc = plan.document
+    web = doc["webs"][0]
+    assert web["planned_features"], web["why"]
+    rho = web["density_g_cm3"] * 1e-3
+    # 1. the exported body, read by OpenCascade's plain reader, lands within the tolerance of the target
+    solids = _read_step_solids(tmp_path / "out" / "web-a.step")
+    total = np.zeros(2)
+    from geomgen.materials import material
+
+    plug_rho = material(job["correction"].get("plug_material", "tungsten-class-3")).density * 1e-3 \
+        if kind == "plugs" else rho
+    for i, s in enumerate(solids):
+        v, c = _gprop(s)
+        total += (rho if i == 0 else plug_rho) * v * c[:2]
+    target = np.array(web["target_gmm"])
+    assert np.linalg.norm(total - target) <= web["tolerance_gmm"] + 1e-6
+    # 2. the STL by trimesh agrees with the exact body (the mesh is within its chord of the B-rep)
+    import trimesh
+
+    mesh = trimesh.load(tmp_path / "out" / "web-a.stl")
+    v0, c0 = _gprop(solids[0])
+    assert mesh.volume == pytest.approx(v0, rel=2e-3)
+    assert np.allclose(mesh.center_mass[:2], c0[:2], atol=0.05)
+    # 3. depths from the real entry face, walls on the solid
+    original = _read_step_solids(model)[0]
+    c = job["correction"]
+    for f in web["planned_features"]:
+        if f["kind"] not in ("hole", "pocket"):
+            continue
+        if f["kind"] == "hole":
+            x, y = f["x"], f["y"]
+        else:
+            a = math.radians(0.5 * (f["angle_start"] + f["angle_end"]))
+            r = 0.5 * (f["r_inner"] + f["r_outer"])
+            x, y = -r * math.sin(a), r * math.cos(a)
+        faces = _ray_hits(original, x, y)
+        entry = faces[-1] if f["face"] == "outer" else faces[0]
+        after = _ray_hits(solids[0], x, y)
+        if f.get("through"):
+            assert not [z for z in after if faces[0] + 1e-6 < z < faces[-1] - 1e-6]
+            continue
+        tip = f["depth"] + (0.5 * f["diameter"] / math.tan(math.radians(0.5 * f["point_angle"]))
+                            if f["kind"] == "hole" and f["point_angle"] < 180 else 0.0)
+        bottom = max(after) if f["face"] == "outer" else min(after)
+        assert abs(entry - bottom) == pytest.approx(tip, abs=1e-6)
+        # the floor left under the feature is at least min_wall
+        floor = bottom - faces[0] if f["face"] == "outer" else faces[-1] - bottom
+        assert floor >= c["min_wall"] - 1e-6
+        if f["kind"] == "hole":
+            _hole_walls(original, x, y, f, entry, c)
+
+
+def _hole_walls(original, x, y, f, entry, c):
+    """BRepExtrema between a cylinder the size of the hole (built here) and every face of the model but
+    its entry face: the wall the hole leaves, at least min_wall (pin_wall to the crankpin bore)."""
+    import cadquery as cq
+    from OCP.BRepExtrema import BRepExtrema_DistShapeShape
+    from OCP.TopAbs import TopAbs_FACE
+    from OCP.TopExp import TopExp_Explorer
+
+    r, down = 0.5 * f["diameter"], f["face"] == "outer"
+    z0 = entry - f["depth"] if down else entry
+    cyl = cq.Solid.makeCylinder(r, f["depth"], cq.Vector(x, y, z0)).wrapped
+    exp = TopExp_Explorer(original, TopAbs_FACE)
+    while exp.More():
+        face = exp.Current()
+        exp.Next()
+        d = BRepExtrema_DistShapeShape(cyl, face)
+        if d.Value() < 1e-7:
+            continue  # the entry face
+        to_pin = math.hypot(d.PointOnShape2(1).X(), d.PointOnShape2(1).Y() - 0.5 * STROKE) < 0.5 * PIN + 1e-6
+        need = max(c["min_wall"], c["pin_wall"]) if to_pin else c["min_wall"]
+        assert d.Value() >= need - 1e-6
