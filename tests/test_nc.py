@@ -16,6 +16,7 @@ import io
 import math
 import os
 import re
+import tomllib
 from pathlib import Path
 
 import pytest
@@ -43,9 +44,16 @@ def _works(plan):
     return [w.work for w in plan.webs]
 
 
+def _planned_samples() -> list[Path]:
+    """The sample jobs, less those whose web is a STEP model (`[web] model`, made by
+    samples/make_model_webs.py): they join this list when the job reader takes `model`."""
+    return [p for p in sorted(SAMPLES.glob("*.toml"))
+            if "model" not in tomllib.loads(p.read_text(encoding="utf-8")).get("web", {})]
+
+
 @pytest.fixture(scope="module")
 def sample_plans():
-    return {p.stem: geomgen.plan(p) for p in sorted(SAMPLES.glob("*.toml"))}
+    return {p.stem: geomgen.plan(p) for p in _planned_samples()}
 
 
 def _with_features(plan, features, *, web=0, machining=None):
