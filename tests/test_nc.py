@@ -46,7 +46,8 @@ def _works(plan):
 
 def _planned_samples() -> list[Path]:
     """The sample jobs, less those whose web is a STEP model (`[web] model`, made by
-    samples/make_model_webs.py): they join this list when the job reader takes `model`."""
+    samples/make_model_webs.py): a model whose faces stand at several heights gets no program (its work is
+    cut from the sheet; tests/test_model_web.py checks the note)."""
     return [p for p in sorted(SAMPLES.glob("*.toml"))
             if "model" not in tomllib.loads(p.read_text(encoding="utf-8")).get("web", {})]
 

@@ -41,8 +41,8 @@ PER_WEB = {"heavier-piston": 8608.7, "lighter-piston-teardrop": 9187.64, "plugs-
            "lightening": 10493.5, "radial-rim": 8478.5}
 
 
-#: samples whose web is a STEP model made by samples/make_model_webs.py: the model and its job's web keys are
-#: checked in tests/test_model_webs.py; the job's study and plan belong in HAND once the job reader takes `model`
+#: samples whose web is a STEP model made by samples/make_model_webs.py: loading one loads the CAD kernel, so
+#: their study and plan are checked by hand in tests/test_model_web.py (marked cad)
 MODEL_SAMPLES = {"model-web"}
 
 

@@ -37,6 +37,8 @@ def section_html(nc) -> str:
     if nc is None:
         return ""
     if not nc.programs:
+        if nc.notes:
+            return "<h2>NC programs</h2>" + "".join(f'<p class="note">{_e(n)}</p>' for n in nc.notes)
         return ("<h2>NC programs</h2><p>No new work on a face or the rim, or [machining] programs = false: "
                 "no program was written.</p>")
     steps = "".join(f"<li>{_e(s)}</li>" for s in PROVE_OUT)
