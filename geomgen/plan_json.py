@@ -62,6 +62,21 @@ def feature_rows(features, section) -> list[dict]:
     return rows
 
 
+def prism_comparison(section, tolerance: float) -> dict:
+    """What a flat prism of the model's outline (less its bores) and mean thickness (volume / area) would
+    have said of the bare web's unbalance, and how far that is from the model's exact figure."""
+    from .loops import prism
+
+    base = section.massprops()
+    area = section.area_moments()
+    mean_t = base.volume / area.area
+    flat = prism(area, z0=0.0, z1=mean_t, density_g_cm3=section.density_g_cm3)
+    gap = float(np.hypot(*(flat.unbalance - base.unbalance)))
+    return {"mean_thickness_mm": num(mean_t), "prism_unbalance_gmm": vec(flat.unbalance),
+            "model_unbalance_gmm": vec(base.unbalance), "prism_error_gmm": num(gap),
+            "prism_error_share_of_tolerance": num(gap / tolerance) if tolerance > 0 else None}
+
+
 def _outline_entry(spec):
     """Where the web's shape comes from: a DXF path, a diameter, or a model (its path and turn)."""
     if spec.model is not None:
@@ -113,6 +128,8 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
             "within_tolerance": p.within_tolerance,
         }
         entry["features"] = entry["existing_features"] + entry["planned_features"]
+        if getattr(w.section, "model", None) is not None:
+            entry["prism_comparison"] = prism_comparison(w.section, p.tolerance)
         calibration = calibration_figures(w.spec)
         if calibration is not None:
             entry["calibration"] = calibration

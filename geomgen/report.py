@@ -332,6 +332,20 @@ def _feature_rows(w, entry: dict) -> list[list[str]]:
     return rows
 
 
+def _prism_note(entry: dict) -> str:
+    """For a web given as a 3D model: what a flat prism of its outline and mean thickness would have said."""
+    c = entry.get("prism_comparison")
+    if c is None:
+        return ""
+    share = c["prism_error_share_of_tolerance"]
+    return (f'<p class="note"><b>Planned on the 3D model.</b> A flat web of the same outline and its mean '
+            f'thickness ({_n(c["mean_thickness_mm"], 2)} mm) would have put the bare web at '
+            f'{_vec(c["prism_unbalance_gmm"])} g·mm; the model is at {_vec(c["model_unbalance_gmm"])} g·mm: '
+            f'{_n(c["prism_error_gmm"], 1)} g·mm apart'
+            + (f", {_n(100 * share, 0)} % of the web's allowed deviation" if share is not None else "")
+            + ", the error a flat drawing would have carried into the plan.</p>")
+
+
 def _web_block(w, entry: dict) -> str:
     before = w.existing
     pics = [
@@ -363,6 +377,7 @@ def _web_block(w, entry: dict) -> str:
         '<span style="color:#d9822b">⊕ COM before</span><span style="color:#2a7d4f">⊕ COM after</span></p>',
         f'<div class="pair">{figs}</div>',
         f"<p><b>Why this plan:</b> {_e(entry['why'])}. <b>What limits it:</b> {_e(entry['binding'])}.</p>",
+        _prism_note(entry),
         # the planner's `why` usually lists what it tried; show the list only when it adds to it
         f"<ul class=\"note\">{considered}</ul>" if considered and not all(
             c in entry["why"] for c in entry.get("considered", [])) else "",

@@ -298,3 +298,29 @@ def test_shipped_sample_plans_on_its_model(tmp_path):
     report = (tmp_path / "out" / "report.html").read_text()
     assert "web a is a 3D model" in report and "cut it from the sheet" in report
     assert not list((tmp_path / "out").glob("*.nc"))
+
+
+def test_what_a_flat_prism_would_have_said(folder):
+    """plan.json's prism_comparison: a prism given as a model is its own flat prism (mean thickness 18 mm,
+    no error); for the shipped sample the flat prism's unbalance is the density times the mean thickness
+    times the first moment of the outline less the bores, here from shapely's area and centroid of a
+    polygon within 1e-4 mm of the outline and bores (an independent library), to 1e-4."""
+    import shapely
+
+    prism_plan = api.plan(_job(folder / "prism.step"))
+    c = prism_plan.document["webs"][0]["prism_comparison"]
+    assert c["mean_thickness_mm"] == pytest.approx(18.0, abs=1e-4)
+    assert c["prism_error_gmm"] <= 1e-3
+    plan = api.plan(SAMPLES / "model-web.toml")
+    web = plan.document["webs"][0]
+    c = web["prism_comparison"]
+    sec = plan.webs[0].work.section
+    poly = shapely.Polygon(sec.outer.points(1e-4), [b.oriented(False).points(1e-4) for b in sec.bores])
+    rho = web["density_g_cm3"] * 1e-3
+    expected_y = rho * c["mean_thickness_mm"] * poly.area * poly.centroid.y
+    assert c["prism_unbalance_gmm"][1] == pytest.approx(expected_y, rel=1e-4)
+    # the model's own figure is the exact B-rep's, and the flat drawing is off by more than the tolerance
+    # (the figures of plan.json are rounded to 6 significant digits)
+    assert c["prism_error_gmm"] == pytest.approx(abs(c["prism_unbalance_gmm"][1] - c["model_unbalance_gmm"][1]),
+                                                 rel=1e-4)
+    assert c["prism_error_gmm"] > web["tolerance_gmm"]
