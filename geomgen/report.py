@@ -332,6 +332,19 @@ def _feature_rows(w, entry: dict) -> list[list[str]]:
     return rows
 
 
+def _model_section(w) -> str:
+    """A model web's section along Y (geomgen.model_view), inline; nothing for a prism web."""
+    if getattr(w.section, "model", None) is None or getattr(w.section.model, "shape", None) is None:
+        return ""
+    from .model_view import section_svg
+    from .nc.report_section import _svg_inline
+
+    svg = section_svg(w, title=f"web {w.spec.name}")
+    return (f'<figure class="study">{_svg_inline(svg)}<figcaption>Web {_e(w.spec.name)} cut along its Y axis: '
+            "the model's thickness profile and each new feature's depth from the face it enters, numbered as "
+            "on the sheet.</figcaption></figure>")
+
+
 def _prism_note(entry: dict) -> str:
     """For a web given as a 3D model: what a flat prism of its outline and mean thickness would have said."""
     c = entry.get("prism_comparison")
@@ -378,6 +391,7 @@ def _web_block(w, entry: dict) -> str:
         f'<div class="pair">{figs}</div>',
         f"<p><b>Why this plan:</b> {_e(entry['why'])}. <b>What limits it:</b> {_e(entry['binding'])}.</p>",
         _prism_note(entry),
+        _model_section(w),
         # the planner's `why` usually lists what it tried; show the list only when it adds to it
         f"<ul class=\"note\">{considered}</ul>" if considered and not all(
             c in entry["why"] for c in entry.get("considered", [])) else "",

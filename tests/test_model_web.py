@@ -324,3 +324,22 @@ def test_what_a_flat_prism_would_have_said(folder):
     assert c["prism_error_gmm"] == pytest.approx(abs(c["prism_unbalance_gmm"][1] - c["model_unbalance_gmm"][1]),
                                                  rel=1e-4)
     assert c["prism_error_gmm"] > web["tolerance_gmm"]
+
+
+def test_section_profile_is_the_model_s(folder):
+    """The section view's profile along Y at x = 0 on the boss web, against the maker's dimensions: the
+    14 mm disc at y = -40 and y = 50 (clear of the 20 mm pin bore at y 20..40), the boss to z = 20 at y = -15
+    (outside the 22 mm main bore, inside the 50 mm boss), nothing in the main bore (y = 0)."""
+    from geomgen.model_view import profile
+    from geomgen.webs import web_section
+
+    job = api.load_job(_job(folder / "boss.step"))
+    ys, spans = profile(web_section(job, job.webs[0]))
+
+    def at(y):
+        return spans[int(np.argmin(np.abs(ys - y)))]
+
+    assert at(-40.0) == [(pytest.approx(0.0, abs=1e-9), pytest.approx(14.0, abs=1e-9))]
+    assert at(50.0) == [(pytest.approx(0.0, abs=1e-9), pytest.approx(14.0, abs=1e-9))]
+    assert at(-15.0) == [(pytest.approx(0.0, abs=1e-9), pytest.approx(20.0, abs=1e-9))]
+    assert at(0.0) == []
