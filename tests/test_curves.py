@@ -85,7 +85,7 @@ def test_a_periodic_spline_is_read_on_its_domain():
     assert sp.end == pytest.approx(sp.start, abs=1e-12)
     assert min(math.dist(sp.start, p) for p in poles) > 1.0     # the ends are no control point
     ts = np.linspace(3.0, 11.0, 40001)
-    dense = shapely.LinearRing([(v.x, v.y) for v in ez.points(ts)])
+    dense = shapely.LinearRing(np.array([(v.x, v.y) for v in ez.points(ts)]))
     assert max(dense.distance(shapely.Point(p)) for p in sp.flatten(0.01)) < 1e-5
 
 
@@ -123,7 +123,7 @@ def test_fit_spline_moments_against_shapely_on_a_fine_flattening():
     # sagitta times the length, 2.5e-5 mm² here, 2.3e-9 relative)
     bs, sp = fit_spline()
     m = Loop((sp,)).area_moments()
-    ref = shapely.Polygon([(v.x, v.y) for v in bs.flattening(1e-7, segments=64)])
+    ref = shapely.Polygon(np.array([(v.x, v.y) for v in bs.flattening(1e-7, segments=64)]))
     assert m.area == pytest.approx(ref.area, rel=5e-9)
     assert m.centroid[1] == pytest.approx(ref.centroid.y, rel=5e-9)
     assert m.centroid[0] == pytest.approx(0.0, abs=1e-9)       # the rim is symmetric about Y

@@ -57,7 +57,7 @@ def ezdxf_reference(path):
     tool = spline.construction_tool()
     k, p = tool.knots(), tool.degree
     ts = np.linspace(k[p], k[len(k) - p - 1], 400001)
-    return shapely.Polygon([(v.x, v.y) for v in tool.points(ts)])
+    return shapely.Polygon(np.array([(v.x, v.y) for v in tool.points(ts)]))   # an array: shapely reads it at once
 
 
 def write(doc, tmp_path, name="web.dxf"):
