@@ -432,7 +432,9 @@ def _columns(solid, *, where) -> tuple[list[Column], Loop]:
 
 def _silhouette(solid, largest: Loop) -> Loop:
     """The model's outline seen along Z: the union of its faces' triangles, projected.  Where that is the
-    outline of its largest flat face (a prism, a stepped web), that face's exact loop is kept."""
+    outline of its largest flat face (a prism, a stepped web), that face's exact loop is kept; where it is
+    the circle of one of its cylinders parallel to Z (a full-circle rim whose edges are chamfered or
+    rounded, so that no flat face reaches it), that exact circle."""
     import shapely
     from OCP.BRep import BRep_Tool
     from OCP.BRepMesh import BRepMesh_IncrementalMesh
@@ -454,9 +456,10 @@ def _silhouette(solid, largest: Loop) -> Loop:
     if shape.geom_type != "Polygon":
         shape = max(shape.geoms, key=lambda g: g.area)
     outline = shapely.Polygon(shape.exterior)
-    exact = shapely.Polygon(largest.points(FACE_CHORD_MM))
-    if outline.symmetric_difference(exact).area <= 2 * FACE_CHORD_MM * exact.length:
-        return largest
+    for loop in [largest] + [_circle_loop(x, y, r) for x, y, r in _z_cylinders(solid)]:
+        exact = shapely.Polygon(loop.points(FACE_CHORD_MM))
+        if outline.symmetric_difference(exact).area <= 2 * FACE_CHORD_MM * exact.length:
+            return loop
     return Loop.from_points(np.asarray(outline.exterior.coords)).oriented(True)
 
 
@@ -493,6 +496,41 @@ class ModelSection(WebSection):
         if key not in cache:
             cache[key] = exact_change(self, feature, plug_density)
         return cache[key]
+
+
+#: the radial lines along which `radial_band` looks for the material's heights: their angular and radial
+#: spacing (deg, mm)
+BAND_STEP_DEG, BAND_STEP_MM = 2.0, 1.0
+
+
+def radial_band(section: ModelSection, *, axis_deg: float, spread_deg: float, r_in: float) -> tuple[float, float]:
+    """(z_low, z_high): the heights between which the model has material at every point of the radial lines
+    from the rim in to `r_in` (mm from the crank axis), at angles within `spread_deg` of `axis_deg` (deg from +Y,
+    counter-clockwise seen from +Z, as a radial hole's angle).
+
+    Vertical lines every BAND_STEP_MM along each line, every BAND_STEP_DEG, are cut by the model's faces
+    (IntCurvesFace_ShapeIntersector); at each the longest material interval counts (a line through a
+    bore, with none, does not).  A radial hole kept inside the band meets no face on its way in but the
+    rim; the 3D walls (`model_walls`) check what falls between the lines."""
+    from OCP.gp import gp_Dir, gp_Lin, gp_Pnt
+    from OCP.IntCurvesFace import IntCurvesFace_ShapeIntersector
+
+    inter = IntCurvesFace_ShapeIntersector()
+    inter.Load(section.model.shape, 1e-7)
+    lo, hi = 0.0, section.thickness
+    n = max(1, int(math.ceil(spread_deg / BAND_STEP_DEG)))
+    r_out = section.rim_radius_max
+    for k in range(-n, n + 1):
+        a = math.radians(axis_deg + spread_deg * k / n)
+        ux, uy = -math.sin(a), math.cos(a)
+        for r in np.arange(r_out - 0.01, r_in - 1e-9, -BAND_STEP_MM):
+            inter.Perform(gp_Lin(gp_Pnt(float(r * ux), float(r * uy), -1.0), gp_Dir(0, 0, 1)), -1e9, 1e9)
+            zs = sorted({round(inter.Pnt(i).Z(), 9) for i in range(1, inter.NbPnt() + 1)})
+            spans = [(zs[i], zs[i + 1]) for i in range(0, len(zs) - 1, 2)]
+            if spans:
+                z0, z1 = max(spans, key=lambda s: s[1] - s[0])
+                lo, hi = max(lo, z0), min(hi, z1)
+    return (lo, hi) if hi > lo else (0.0, 0.0)
 
 
 def exact_change(section: ModelSection, feature, plug_density: float | None = None) -> MassProps:

@@ -39,6 +39,10 @@ class ColumnSection(WebSection):
     base: MassProps | None = None
     z_bot: float = 0.0
     fixed: tuple = ()              # features already on the web: their exact changes are in `base`
+    z_band: tuple | None = None    # radial holes: the heights with material all along their way in
+
+    def radial_z_band(self) -> tuple[float, float]:
+        return self.z_band if self.z_band is not None else super().radial_z_band()
 
     def massprops(self) -> MassProps:
         return self.base
@@ -49,11 +53,12 @@ class ColumnSection(WebSection):
         return super().change(feature, plug_density).transformed(offset=(0.0, 0.0, self.z_bot))
 
 
-def _column_section(section, column, base: MassProps, existing) -> ColumnSection:
+def _column_section(section, column, base: MassProps, existing, z_band=None) -> ColumnSection:
     bores = tuple(column.holes) + tuple(b for b in section.bores if not _among(b, column.holes))
     return ColumnSection(outer=column.outer, bores=bores, pin_center=section.pin_center, pin_bore=section.pin_bore,
                          thickness=column.thickness, density_g_cm3=section.density_g_cm3,
-                         main_bore=section.main_bore, base=base, z_bot=column.z_bot, fixed=tuple(existing))
+                         main_bore=section.main_bore, base=base, z_bot=column.z_bot, fixed=tuple(existing),
+                         z_band=z_band)
 
 
 def _among(loop, loops) -> bool:
@@ -83,9 +88,17 @@ def plan_model_web(*, name: str, section, existing, target, tolerance: float, me
     whole = Column(section.outer, (), 0.0, section.thickness)
     runs = [(m, k, c) for m in methods for k, c in
             ([(0, whole)] if m == "radial" else enumerate(section.model.columns, 1))]
+    band = None
+    if "radial" in methods:
+        from .model3d import radial_band
+        from .plan_radial import MAX_SPREAD_DEG
+        from .planner import _direction_angle
+
+        band = radial_band(section, axis_deg=_direction_angle(before.unbalance - target),
+                           spread_deg=MAX_SPREAD_DEG, r_in=0.5 * section.main_bore + limits.min_wall)
     plans, failures = [], []
     for meth, k, column in runs:
-        col = _column_section(section, column, before, existing)
+        col = _column_section(section, column, before, existing, band if meth == "radial" else None)
         where = (f"column {k} (z {column.z_bot:g} .. {column.z_top:g} mm)" if k else "silhouette (rim)")
         where = f"{meth} on {where}"
         aim, zones = target.copy(), tuple(keep_out)

@@ -1,12 +1,14 @@
-"""Planning radial rim holes: drilled from the rim towards the crank axis, in the web's mid-plane.
+"""Planning radial rim holes: drilled from the rim towards the crank axis, in the web's mid-plane
+(on a web given as a model: midway between the heights where the web has material all along the holes' way,
+`radial_z_band`).
 
 The layout is symmetric about the line of the material to take away (so it adds no x component): one
 hole on that line for an odd count, pairs either side of it, at an angular pitch that keeps `min_wall`
 between neighbours at their tips.  The drill is the largest of the job's series that keeps `min_wall`
-to both faces; every hole goes to one depth, solved on the exact effect (kinds/radial_maths.py) and put
-on the `depth_step` grid.  How deep a hole may go is found on the plan view: its footprint (tip
-included) must keep `pin_wall` from the crankpin bore and `min_wall` from the other bores, the existing
-features and the keep-out zones.  No CAD kernel.
+to both faces (to both heights of that band); every hole goes to one depth, solved on the exact effect
+(kinds/radial_maths.py) and put on the `depth_step` grid.  How deep a hole may go is found on the plan
+view: its footprint (tip included) must keep `pin_wall` from the crankpin bore and `min_wall` from the
+other bores, the existing features and the keep-out zones.  No CAD kernel.
 """
 
 from __future__ import annotations
@@ -95,8 +97,12 @@ def plan_radial(*, section, existing, need_vec, tolerance: float, limits, keep_o
     """Radial holes that take `need_vec` (g*mm, the change wanted) off within `tolerance`, or None; and the
     largest reach found, g*mm.  axis : deg from +Y, the direction of the material to remove."""
     t, rho = section.thickness, section.density_g_cm3
-    z = 0.5 * t
-    drills = [d for d in sorted(limits.drills, reverse=True) if d <= t - 2 * limits.min_wall + 1e-9][:DRILLS_TRIED]
+    # on a web whose faces stand at several heights (a model), the holes go at the middle of the heights
+    # found all along their way in; on a prism that is the mid-plane
+    z_lo, z_hi = section.radial_z_band()
+    z = 0.5 * (z_lo + z_hi)
+    drills = [d for d in sorted(limits.drills, reverse=True)
+              if d <= z_hi - z_lo - 2 * limits.min_wall + 1e-9][:DRILLS_TRIED]
     u = np.asarray(need_vec, dtype=float) / float(np.linalg.norm(need_vec))
     need = float(np.linalg.norm(need_vec))
     forbidden = _forbidden(section=section, existing=existing, limits=limits, keep_out=keep_out)

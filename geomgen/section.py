@@ -82,6 +82,11 @@ class WebSection:
         """(z_bot, z_top): where a feature meets the web's two faces (a prism: 0 and the thickness)."""
         return (0.0, self.thickness)
 
+    def radial_z_band(self) -> tuple[float, float]:
+        """(z_low, z_high): the heights between which a radial hole finds web material all along its way in
+        from the rim (a prism: both faces)."""
+        return (0.0, self.thickness)
+
     def column_thickness(self, feature) -> float:
         """How much web the feature's drill meets between its two faces, mm (a prism: the thickness)."""
         z0, z1 = self.column(feature)

@@ -205,13 +205,14 @@ def test_a_model_is_one_of_three_shapes(folder):
 
 # ------------------------------------------------------------------ plans held to the exported result
 CASES = [("boss", "holes"), ("chamfered", "holes"), ("recessed", "plugs"),
-         ("boss", "pockets"), ("chamfered", "plugs"), ("lobe", "plugs"), ("lobe", "pockets")]
+         ("boss", "pockets"), ("chamfered", "plugs"), ("lobe", "plugs"), ("lobe", "pockets"),
+         ("boss", "radial"), ("chamfered", "radial"), ("recessed", "radial")]
 
 
 @pytest.mark.parametrize("name, kind", CASES)
 def test_plan_on_a_model_checked_on_its_files(folder, tmp_path, name, kind):
     model = folder / f"{name}.step"
-    job = _job(model, kind=kind, light=name == "lobe")
+    job = _job(model, kind=kind, light=name == "lobe" or kind == "radial")
     plan = api.plan(job)
     written = plan.verify().write(tmp_path / "out")
     assert "web-a.step" in [Path(p).name for p in written]
@@ -240,6 +241,9 @@ def test_plan_on_a_model_checked_on_its_files(folder, tmp_path, name, kind):
     original = _read_step_solids(model)[0]
     c = job["correction"]
     for f in web["planned_features"]:
+        if f["kind"] == "radial":
+            _radial_on_result(original, solids[0], f, c)
+            continue
         if f["kind"] in ("hole", "plug"):
             x, y = f["x"], f["y"]
         else:
@@ -265,6 +269,50 @@ def test_plan_on_a_model_checked_on_its_files(folder, tmp_path, name, kind):
         assert floor >= c["min_wall"] - 1e-6
         if f["kind"] == "hole":
             _hole_walls(original, x, y, f, entry, c)
+
+
+def _radial_on_result(original, result, f, c):
+    """A radial hole on its files: a horizontal line beside its axis (E mm above it, from outside the rim
+    inwards; a line through the point's apex itself is a tangency the intersector may miss) meets the model
+    first at the rim and the cut body first on the drill's point, depth plus the point's length
+    (d / 2 / tan(point_angle / 2), Machinery's Handbook's drill-point length) less E / tan(point_angle / 2)
+    further in; a
+    cylinder the size of its full-diameter part, built here, touches one face of the model (the rim it
+    enters) and keeps min_wall (pin_wall to the crankpin bore) from every other."""
+    import cadquery as cq
+    from OCP.BRepExtrema import BRepExtrema_DistShapeShape
+    from OCP.gp import gp_Dir, gp_Lin, gp_Pnt
+    from OCP.IntCurvesFace import IntCurvesFace_ShapeIntersector
+    from OCP.TopAbs import TopAbs_FACE
+    from OCP.TopExp import TopExp_Explorer
+
+    a, e = math.radians(f["angle"]), 0.25
+    ux, uy = -math.sin(a), math.cos(a)           # outwards along the hole's axis
+
+    def first_hit(shape):
+        inter = IntCurvesFace_ShapeIntersector()
+        inter.Load(shape, 1e-7)
+        inter.Perform(gp_Lin(gp_Pnt(100 * ux, 100 * uy, f["z"] + e), gp_Dir(-ux, -uy, 0.0)), 0.0, 1e9)
+        return 100.0 - min(inter.WParameter(i) for i in range(1, inter.NbPnt() + 1))
+
+    entry, tip = first_hit(original), first_hit(result)
+    cot = 1.0 / math.tan(math.radians(0.5 * f["point_angle"]))
+    assert entry - tip == pytest.approx(f["depth"] + (0.5 * f["diameter"] - e) * cot, abs=1e-6)
+    shoulder = entry - f["depth"]
+    cyl = cq.Solid.makeCylinder(0.5 * f["diameter"], f["depth"] + 5.0, cq.Vector(shoulder * ux, shoulder * uy, f["z"]),
+                                cq.Vector(ux, uy, 0.0)).wrapped
+    exp, touched = TopExp_Explorer(original, TopAbs_FACE), 0
+    while exp.More():
+        face = exp.Current()
+        exp.Next()
+        d = BRepExtrema_DistShapeShape(cyl, face)
+        if d.Value() < 1e-7:
+            touched += 1
+            continue
+        to_pin = math.hypot(d.PointOnShape2(1).X(), d.PointOnShape2(1).Y() - 0.5 * STROKE) < 0.5 * PIN + 1e-6
+        need = max(c["min_wall"], c["pin_wall"]) if to_pin else c["min_wall"]
+        assert d.Value() >= need - 1e-6
+    assert touched == 1
 
 
 def _hole_walls(original, x, y, f, entry, c):
