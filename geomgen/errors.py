@@ -21,10 +21,15 @@ class BadInput(GeomgenError):
 class Infeasible(GeomgenError):
     """The target cannot be reached within the constraints: exit code 3.
 
-    The message gives the reachable range and the constraint that binds.
+    The message gives the reachable range and the constraint that binds; `reach` (g*mm, when known) is
+    the most correction the search found, along the direction asked.
     """
 
     exit_code = 3
+
+    def __init__(self, message: str, reach: float | None = None):
+        super().__init__(message)
+        self.reach = reach
 
 
 class VerificationFailed(GeomgenError):

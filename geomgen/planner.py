@@ -944,7 +944,7 @@ def _raise_infeasible(name, need, reaches, limits, methods, section, existing, t
     raise Infeasible(f"web {name}: needs {need:.0f} g*mm of correction but the search found at most "
                      f"{', '.join(parts)} within "
                      f"min_wall = {limits.min_wall:g} mm, pin_wall = {limits.pin_wall:g} mm and max_depth = "
-                     f"{limits.max_depth:g} mm{plugs}{hint}")
+                     f"{limits.max_depth:g} mm{plugs}{hint}", reach=max(reaches.values(), default=0.0))
 
 
 # ------------------------------------------------------------------ lightening
