@@ -13,6 +13,7 @@ from __future__ import annotations
 import importlib.util
 import json
 import math
+import re
 import tomllib
 from pathlib import Path
 
@@ -280,6 +281,9 @@ def test_plan_on_a_model_checked_on_its_files(folder, tmp_path, name, kind, extr
         # holes both in the recess's column (over the recess floor, 2.5 mm up) and outside it
         inside = [math.hypot(f["x"], f["y"] - 0.5 * STROKE) < 0.5 * MAKER.RECESS_D for f in feats]
         assert any(inside) and not all(inside)
+        # stretches 18 and 15.5 mm thick under one face: no program, the report says to cut from the sheet
+        assert not (tmp_path / "out" / "web-a-outer.nc").exists()
+        assert "flat stretches of different thickness" in (tmp_path / "out" / "report.html").read_text()
     if extra.get("lighten"):
         assert _lightening_mass(feats, rho) == pytest.approx(extra["lighten"], abs=0.5)
 
@@ -385,8 +389,11 @@ def _hole_walls(original, x, y, f, entry, c):
 def test_shipped_sample_plans_on_its_model(tmp_path):
     """samples/model-web.toml (invented engine): bob weight by hand 146 + 0.55 * 274 = 296.7 g, each web's
     target (146 + 92 + 150.7) * 60 / 2 / 2 = 5830.5 g*mm; the plan lands within tolerance on the exact B-rep
-    (against the exact per-feature effects: 1e-6 relative), and as its faces stand at several heights the
-    report says its work is cut from the sheet, not from a program."""
+    (against the exact per-feature effects: 1e-6 relative).  Its holes all enter the disc's outer face
+    (z = 16) while the boss stands 5 mm higher (the maker's dimensions): web-a-outer.nc, read here word by
+    word, is zeroed on that face, moves sideways only 5 mm plus the R plane (2 mm, the default) above it or
+    higher, and drills each hole to the sheet's travel from that face (through: the 16 mm disc plus the
+    point, d / 2 / tan(59 deg), Machinery's Handbook's drill point)."""
     assert api.study(SAMPLES / "model-web.toml")["bob_weight_g"] == pytest.approx(296.7, abs=1e-3)
     plan = api.plan(SAMPLES / "model-web.toml")
     verified = plan.verify()
@@ -398,9 +405,35 @@ def test_shipped_sample_plans_on_its_model(tmp_path):
         exact = np.array(web["exact"]["unbalance_gmm"])
         predicted = np.array(web["predicted"]["unbalance_gmm"])
         assert np.linalg.norm(exact - predicted) <= 1e-6 * np.linalg.norm(predicted)
-    report = (tmp_path / "out" / "report.html").read_text()
-    assert "web a is a 3D model" in report and "cut it from the sheet" in report
-    assert not list((tmp_path / "out").glob("*.nc"))
+    text = (tmp_path / "out" / "web-a-outer.nc").read_text()
+    assert "Z0 on the outer face where these features enter it, z 16" in " ".join(
+        line.strip("()") for line in text.splitlines())
+    maker = _maker()
+    rise = maker.SAMPLE_BOSS_TOP - maker.SAMPLE_T
+    assert rise == pytest.approx(5.0)
+    pos, mode, bottoms = {"X": None, "Y": None, "Z": None}, None, []
+    for raw in text.splitlines():
+        line = re.sub(r"\([^)]*\)", "", raw).strip()
+        words = dict(re.findall(r"([A-Z])(-?\d+(?:\.\d+)?)", line))
+        codes = re.findall(r"G(\d+)", line)
+        for g in codes:
+            if g in ("0", "1", "2", "3", "81", "83"):
+                mode = g
+        new = {k: float(words[k]) for k in "XYZ" if k in words}
+        if mode in ("81", "83") and "R" in words and ("X" in words or "Y" in words):
+            assert float(words["R"]) >= rise + 2.0 - 1e-9
+            bottoms.append((new.get("X", pos["X"]), new.get("Y", pos["Y"]), new["Z"]))
+            pos.update({k: v for k, v in new.items() if k in "XY"})
+            continue
+        if mode == "0" and ("X" in new or "Y" in new) and pos["Z"] is not None:
+            assert new.get("Z", pos["Z"]) >= rise + 2.0 - 1e-9
+        pos.update(new)
+    web = doc["webs"][0]
+    assert len(bottoms) == len(web["planned_features"])
+    for f in web["planned_features"]:
+        tip = (maker.SAMPLE_T if f.get("through") else f["depth"]) + 0.5 * f["diameter"] / math.tan(math.radians(59))
+        near = [b for b in bottoms if abs(b[0] - f["x"]) < 1e-3 and abs(b[1] - f["y"]) < 1e-3]
+        assert len(near) == 1 and near[0][2] == pytest.approx(-tip, abs=1e-3)
 
 
 def test_what_a_flat_prism_would_have_said(folder):

@@ -45,11 +45,9 @@ def _works(plan):
 
 
 def _planned_samples() -> list[Path]:
-    """The sample jobs, less those whose web is a STEP model (`[web] model`, made by
-    samples/make_model_webs.py): a model whose faces stand at several heights gets no program (its work is
-    cut from the sheet; tests/test_model_web.py checks the note)."""
-    return [p for p in sorted(SAMPLES.glob("*.toml"))
-            if "model" not in tomllib.loads(p.read_text(encoding="utf-8")).get("web", {})]
+    """Every sample job (model-web.toml's web is a STEP model made by samples/make_model_webs.py: its program
+    is zeroed on the face its holes enter, tests/test_model_web.py checks its heights on the model)."""
+    return sorted(SAMPLES.glob("*.toml"))
 
 
 @pytest.fixture(scope="module")
@@ -84,6 +82,7 @@ def test_every_sample_program_parses_simulates_and_matches_its_plan(sample_plans
     assert names == {"heavier-piston": ["web-a-outer.nc", "web-b-outer.nc"],
                      "lightening": ["web-a-outer.nc", "web-b-outer.nc"],
                      "lighter-piston-teardrop": ["web-a-outer.nc", "web-b-outer.nc"],
+                     "model-web": ["web-a-outer.nc", "web-b-outer.nc"],
                      "plugs-stroker": ["web-a-outer.nc", "web-b-outer.nc"],
                      "radial-rim": ["web-a-rim.nc", "web-b-rim.nc"]}
 
@@ -435,7 +434,6 @@ def test_a_writer_bug_stops_the_files_with_exit_4(sample_plans, monkeypatch):
 
 def test_readme_machining_block_is_the_defaults():
     """The README's job-file block lists [machining] with the defaults the code uses."""
-    import tomllib
 
     from geomgen.nc.settings import METRIC_END_MILLS, read_machining
 

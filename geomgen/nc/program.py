@@ -30,7 +30,7 @@ along the hole's axis once the web is indexed; an M0 stop before each hole to in
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -142,12 +142,16 @@ def _group(feature, work) -> str:
 class _Face:
     """Writes one face program."""
 
-    def __init__(self, job, work, face: str, numbered: list, m: Machining):
+    def __init__(self, job, work, face: str, numbered: list, m: Machining, *, thickness: float | None = None,
+                 raised: float = 0.0, entry_z: float | None = None):
         self.job, self.work, self.face, self.m = job, work, face, m
         self.numbered = numbered
         self.units = job.output.sheet_units
         self.w = Writer(self.units)
-        self.thickness = work.section.thickness
+        # a model web: the thickness where its features are, how far the model stands above their face
+        # (the safe height and R plane in `m` are raised by as much), and that face's z in the model
+        self.thickness = work.section.thickness if thickness is None else thickness
+        self.raised, self.entry_z = raised, entry_z
         self.tools: dict[int, Tool] = {}
         self.reach: dict[int, float] = {}
         self.cuts: dict[int, cutting_data.Cut] = {}
@@ -419,6 +423,11 @@ class _Face:
         h.comment(f"WORK ZERO G54: X0 Y0 on the crank axis (the centre of the main bore or shaft), +Y towards the "
                   f"crankpin bore's centre, Z0 on the {self.face} face; {turned}. Check X0 Y0 on the crankpin "
                   f"bore: its centre is X0 Y{h.length(self.work.section.pin_center[1])}.")
+        if getattr(self.work.section, "model", None) is not None and self.entry_z is not None:
+            rise = (f"; the model stands up to {h.show(self.raised)} above that face (a boss or a step), so the "
+                    "safe height and the R plane below are raised by as much" if self.raised > 1e-9 else "")
+            h.comment(f"WEB GIVEN AS A 3D MODEL: Z0 on the {self.face} face where these features enter it, z "
+                      f"{h.show(self.entry_z)} of the model; touch Z0 off on that face{rise}.")
         h.comment(f"SAFE HEIGHT Z{h.length(m.clearance)} (moves between operations), R PLANE "
                   f"Z{h.length(m.retract)} (canned cycles, ramps); web {h.show(self.thickness)} thick, "
                   f"{web_material}.")
@@ -573,16 +582,25 @@ def programs(job, webs) -> tuple[list[NCProgram], list[str]]:
     for work in webs:
         first = len(work.existing) + 1
         numbered = list(enumerate(work.plan.features, start=first))
-        if any(work.section.column(f) != (0.0, work.section.thickness) for _, f in numbered):
-            # a model's faces are not one plane each: a program zeroed on one face would cut air or the
-            # part elsewhere, so a model web's work is cut from the sheet (each depth from its own face)
-            notes.append(f"web {work.spec.name} is a 3D model: its faces stand at several heights, so no "
-                         "program is written for it; cut it from the sheet, each depth from the face it enters")
-            continue
         for face in ("outer", "inner"):
             mine = [(n, f) for n, f in numbered if f.kind in FACE_KINDS and f.face == face]
-            if mine:
-                out.append(_Face(job, work, face, mine, m).write())
+            if not mine:
+                continue
+            columns = {work.section.column(f) for _, f in mine}
+            if len(columns) > 1:
+                # a model whose features on this face sit on stretches of different thickness: one program
+                # zeroed on one face would drill the others' through holes and plug bores wrong
+                notes.append(f"web {work.spec.name} is a 3D model whose {face}-face features sit on flat "
+                             "stretches of different thickness, so no program is written for that face; cut it "
+                             "from the sheet, each depth from the face it enters")
+                continue
+            (z_bot, z_top), = columns
+            # Z0 on the face the features enter; where the model stands higher on that side (a boss, a
+            # step), the safe height and the R plane are raised by as much
+            above = (work.section.thickness - z_top) if face == "outer" else z_bot
+            mm = replace(m, clearance=m.clearance + above, retract=m.retract + above) if above > 1e-9 else m
+            out.append(_Face(job, work, face, mine, mm, thickness=z_top - z_bot, raised=above,
+                             entry_z=z_top if face == "outer" else z_bot).write())
         rim = [(n, f) for n, f in numbered if f.kind == RIM_KIND]
         if rim:
             out.append(rim_program(job, work, rim, m))
