@@ -140,6 +140,10 @@ def calibrate_web(spec, weighing: Weighing, *, stroke: float, rebuild, where: st
     from .materials import custom
 
     rho0, t0 = spec.material.density, spec.thickness
+    is_model = getattr(spec, "model", None) is not None
+    if is_model and weighing.mode == "thickness":
+        raise BadInput(f"{where}.calibrate: a web given as a model has the model's own thickness; fit its "
+                       "density to the weighing instead (calibrate = \"density\")")
     m_model = model_mass(spec, stroke)
 
     def with_density(rho):
@@ -160,7 +164,12 @@ def calibrate_web(spec, weighing: Weighing, *, stroke: float, rebuild, where: st
         fitted = with_density(rho)
         fitted = replace(fitted, material=replace(
             fitted.material, source=f"fitted to the weighed {target:g} g ({spec.material.name} nominal {rho0:g})"))
-        per_t = (thickness_mass(t0 * 1.001) - thickness_mass(t0)) / (0.001 * t0) * (rho / rho0)
+        if is_model:
+            # a model's thickness (its height, spec.thickness) tolerance scales it along Z, as the band takes
+            # it: the mass in proportion
+            per_t = model_mass(fitted, stroke) / t0
+        else:
+            per_t = (thickness_mass(t0 * 1.001) - thickness_mass(t0)) / (0.001 * t0) * (rho / rho0)
         t = t0
     else:
         t, per_t = _solve(_guarded(thickness_mass, where, target), t0, target, 0.001 * t0)

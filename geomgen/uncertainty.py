@@ -4,7 +4,9 @@ The measurement model is the plan's own, written on the 2D closed forms so that 
 a whole array of input values at once:
 
 - a web body is a prism: mass rho t A, unbalance rho t Q (A, Q: the section's area and first area
-  moment, exact from geomgen.loops);
+  moment, exact from geomgen.loops); a web given as a 3D model is the prism of its height T with the
+  model's exact volume and first moment (A = V / T, Q = V c / T), so its thickness scales it along Z,
+  and a through feature there is as long as its own column, scaled alike;
 - a drilled hole removes rho V (x, y), V = pi r^2 depth (+ the drill point's cone, pi r^2 (r cot(a/2)) / 3),
   depth = the web's thickness for a through hole;
 - a plug adds (rho_plug pi/4 D_plug^2 - rho_web pi/4 D_bore^2) length (x, y), length = the thickness for
@@ -97,6 +99,7 @@ class _Hole:
     depth: float | None          # None: through (the web's thickness)
     k_point: float               # cot(point angle / 2); 0 for a flat bottom or a through hole
     keys: dict = field(default_factory=dict)   # "d", "x", "y", "depth" -> input name
+    scale: float = 1.0           # through: its length over the web's thickness (a model's column / its height)
 
     def eval(self, v, rho, t, rho_p):
         d = _get(v, self.keys.get("d"), self.d)
@@ -104,7 +107,7 @@ class _Hole:
         y = _get(v, self.keys.get("y"), self.y)
         r = 0.5 * d
         if self.depth is None:
-            vol = math.pi * r * r * t
+            vol = math.pi * r * r * t * self.scale
         else:
             depth = _get(v, self.keys.get("depth"), self.depth)
             vol = math.pi * r * r * depth + math.pi * r * r * (r * self.k_point) / 3.0
@@ -120,11 +123,12 @@ class _Plug:
     length: float | None         # None: through (the web's thickness)
     material: str
     keys: dict = field(default_factory=dict)   # "x", "y", "length", "bore", "plug" -> input name
+    scale: float = 1.0           # through: its length over the web's thickness (a model's column / its height)
 
     def eval(self, v, rho, t, rho_p):
         x = _get(v, self.keys.get("x"), self.x)
         y = _get(v, self.keys.get("y"), self.y)
-        length = t if self.length is None else _get(v, self.keys.get("length"), self.length)
+        length = t * self.scale if self.length is None else _get(v, self.keys.get("length"), self.length)
         bore = _get(v, self.keys.get("bore"), self.d)
         plug = _get(v, self.keys.get("plug"), self.d)
         m = 1e-3 * length * math.pi * 0.25 * (rho_p[self.material] * plug * plug - rho * bore * bore)
@@ -376,6 +380,12 @@ def _web_model(job, work, index: int, tol: Tolerances, inputs: list, plug_key, p
     web = _Web(name=name, sign=1.0 if index == 0 else -1.0, area=am.area, qx=am.sx, qy=am.sy,
                rho0=sec.density_g_cm3, t0=sec.thickness, existing=[], new=[], mode=mode)
     t0, rho0 = sec.thickness, sec.density_g_cm3
+    if getattr(sec, "model", None) is not None:
+        # a web given as a 3D model: its body is the model's exact volume and first moment, as an equivalent
+        # prism of its height (A = V / T, Q = V c / T); the thickness input then scales the model along Z
+        base = sec.massprops()
+        k = rho0 * 1e-3 * t0
+        web.area, web.qx, web.qy = base.mass / k, float(base.unbalance[0]) / k, float(base.unbalance[1]) / k
 
     def add(inp: Input) -> str:
         inputs.append(inp)
@@ -394,8 +404,7 @@ def _web_model(job, work, index: int, tol: Tolerances, inputs: list, plug_key, p
     if mode != "none":
         m_obs = weighing.weighed_g if weighing is not None else None
         if m_obs is None:   # what weighing it would buy: the reading taken as the model's own mass
-            m_obs = float(sec.massprops().mass + sum(f.massprops(thickness=t0, web_density=rho0).mass
-                                                     for f in work.existing))
+            m_obs = float(sec.massprops().mass + sum(sec.change(f).mass for f in work.existing))
         s = tol.scale
         web.mass_key = add(Input(f"web {name}: weighed mass", f"weighing: web {name}", "scale", m_obs - s, m_obs + s,
                                  m_obs, "g", f"within ±{s:g} g ({tol.source('scale')})"))
@@ -403,7 +412,8 @@ def _web_model(job, work, index: int, tol: Tolerances, inputs: list, plug_key, p
     for new, features in ((False, work.existing), (True, work.plan.features)):
         for k, f in enumerate(features, start=1):
             tag = f"web {name} {'new' if new else 'existing'} {f.kind} {k}"
-            term = _term(f, tag, t0, new, tol, add, plug_key, plug_fit, weighed_plugs, fit_limits)
+            term = _term(f, tag, t0, new, tol, add, plug_key, plug_fit, weighed_plugs, fit_limits,
+                         t_col=sec.column_thickness(f))
             (web.new if new else web.existing).append(term)
     return web
 
@@ -430,13 +440,15 @@ def _place_inputs(term, add, tol, tag: str, f, depth) -> None:
         term.keys[key] = add(Input(f"{tag}: {words}", f"blind depths (±{dp:g} mm)", "depth",
                                    nominal - dp, nominal + dp, nominal, "mm", tol.source("depth")))
 
-def _term(f, tag, t0, new, tol, add, plug_key, plug_fit, weighed_plugs, fit_limits):
-    """The closed-form term of one feature, its inputs added when it is new work."""
+def _term(f, tag, t0, new, tol, add, plug_key, plug_fit, weighed_plugs, fit_limits, t_col=None):
+    """The closed-form term of one feature, its inputs added when it is new work.  t_col : the thickness of
+    web the feature meets (a model's column; the web's thickness on a prism)."""
+    t_col = t0 if t_col is None else t_col
     kind = f.kind
     if kind == "hole":
         through = bool(f.through)
         k_point = 0.0 if through or f.point_angle >= 180.0 else 1.0 / math.tan(math.radians(0.5 * f.point_angle))
-        term = _Hole(f.x, f.y, f.diameter, None if through else f.depth, k_point)
+        term = _Hole(f.x, f.y, f.diameter, None if through else f.depth, k_point, scale=t_col / t0)
         if new:
             a = tol.drill_oversize
             term.keys["d"] = add(Input(f"{tag}: diameter", f"hole diameters (drill oversize 0..+{a:g} mm)",
@@ -445,9 +457,9 @@ def _term(f, tag, t0, new, tol, add, plug_key, plug_fit, weighed_plugs, fit_limi
             _place_inputs(term, add, tol, tag, f, None if through else ("depth", "depth", f.depth))
         return term
     if kind == "plug":
-        through = f.through_web(t0)
+        through = f.through_web(t_col)
         mat = plug_key(f)
-        term = _Plug(f.x, f.y, f.diameter, None if through else f.length, mat)
+        term = _Plug(f.x, f.y, f.diameter, None if through else f.length, mat, scale=t_col / t0)
         if new:
             _place_inputs(term, add, tol, tag, f, None if through else ("length", "bore depth", f.length))
             if f.material is not None and mat not in weighed_plugs:
@@ -789,7 +801,7 @@ def _plug_volume_cm3(model: Model, mat: str) -> float:
     for w in model.webs:
         for term in w.existing + w.new:
             if isinstance(term, _Plug) and term.material == mat:
-                length = w.t0 if term.length is None else term.length
+                length = w.t0 * term.scale if term.length is None else term.length
                 total += math.pi * 0.25 * term.d ** 2 * length * 1e-3
     return total
 

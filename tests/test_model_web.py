@@ -128,8 +128,9 @@ def test_base_properties_are_the_solid_s(folder, name):
 
 def test_prism_model_plans_as_the_parametric_web(folder):
     """A prism given as a model plans exactly as the same web given by diameter and thickness (the
-    parametric route is the reference): same features to 1e-6 mm, same predicted unbalance to 1e-6."""
-    as_model = api.plan(_job(folder / "prism.step"))
+    parametric route is the reference): same features to 1e-6 mm, same predicted unbalance to 1e-6, and
+    the same band on the balance factor (the model's body as the prism of its height, its thickness input
+    scaling it along Z, is then the parametric prism itself)."""
     job = _job(folder / "prism.step")
     job["web"] = {k: v for k, v in job["web"].items() if k != "model"}
     job["web"].update(diameter=130.0, thickness=18.0)
@@ -143,6 +144,9 @@ def test_prism_model_plans_as_the_parametric_web(folder):
                 assert fa[key] == pytest.approx(fb[key], abs=1e-6)
         ua, ub = np.array(a["predicted"]["unbalance_gmm"]), np.array(b["predicted"]["unbalance_gmm"])
         assert np.linalg.norm(ua - ub) <= 1e-6 * np.linalg.norm(ub)
+    band_m, band_p = as_model.document["balance_factor_band"], parametric.document["balance_factor_band"]
+    for key in ("nominal", "low_95", "high_95", "u"):
+        assert band_m[key] == pytest.approx(band_p[key], rel=1e-6)
 
 
 # ------------------------------------------------------------------ bad models: one line, exit 2
@@ -274,6 +278,10 @@ def test_plan_on_a_model_checked_on_its_files(folder, tmp_path, name, kind, extr
         assert floor >= c["min_wall"] - 1e-6
         if f["kind"] == "hole":
             _hole_walls(original, x, y, f, entry, c)
+    # the band's closed forms on the model (its exact body, each feature on its column) give the balance
+    # factor the exact plan achieved
+    assert doc["balance_factor_band"]["nominal"] == pytest.approx(doc["crank"]["balance_factor_achieved"],
+                                                                  abs=1e-6)
     feats = web["planned_features"]
     if kind == "auto":
         assert web["why"].startswith(f"auto: {web['method']} won")
@@ -479,3 +487,18 @@ def test_section_profile_is_the_model_s(folder):
     assert at(50.0) == [(pytest.approx(0.0, abs=1e-9), pytest.approx(14.0, abs=1e-9))]
     assert at(-15.0) == [(pytest.approx(0.0, abs=1e-9), pytest.approx(20.0, abs=1e-9))]
     assert at(0.0) == []
+
+
+def test_a_weighed_model_web_is_fitted_in_density(folder):
+    """A model web weighed at 2000 g: its density is the weighing over the model's volume, worked by hand in
+    samples/make_model_webs.py (cylinders, annuli and segments for the boss web); the band then takes its
+    thickness tolerance as a scale along Z (mass per mm = mass / height, 20 mm).  Fitting a model's
+    thickness instead is refused with one line (exit 2): the model's height is its own."""
+    volume, _ = MAKER.expected("boss")
+    job = _job(folder / "boss.step", weighed=2000.0, calibrate="density")
+    c = api.load_job(job).webs[0].calibration
+    assert c.density == pytest.approx(2000.0 / (volume * 1e-3), rel=1e-9)
+    assert c.mass_per_density == pytest.approx(volume * 1e-3, rel=1e-9)
+    assert c.mass_per_thickness == pytest.approx(2000.0 / MAKER.BOSS_TOP, rel=1e-9)
+    with pytest.raises(BadInput, match=r"web\.calibrate: a web given as a model .*\(calibrate = \"density\"\)"):
+        api.load_job(_job(folder / "boss.step", weighed=2000.0, calibrate="thickness"))
