@@ -292,6 +292,10 @@ def _write(dxf) -> bytes:
     meta = dxf.ezdxf_metadata()
     if "CREATED_BY_EZDXF" in meta:
         meta["CREATED_BY_EZDXF"] = f"{ezdxf.__version__} for geomgen"
+    # the CLASSES section in a fixed order: ezdxf registers some classes in an order that changes from run
+    # to run; those it adds while saving then keep their places
+    dxf.classes.add_required_classes(dxf.dxfversion)
+    dxf.classes.classes = dict(sorted(dxf.classes.classes.items()))
     keep = ezdxf.options.write_fixed_meta_data_for_testing
     ezdxf.options.write_fixed_meta_data_for_testing = True
     try:

@@ -39,6 +39,18 @@ def test_rereads_and_audits_clean(run):
     assert dxf.header["$INSUNITS"] == 4               # millimetres (DXF reference, $INSUNITS)
 
 
+def test_classes_section_in_a_fixed_order(run):
+    """The same plan gives the same drawing bytes from run to run: the CLASSES section (DXF reference:
+    group code 0 CLASS, its DXF record name in group code 1), whose order ezdxf leaves to how its classes
+    were registered, is written sorted by name; ezdxf reads it back with every class there."""
+    lines = (run["out"] / "drawing.dxf").read_text().splitlines()
+    start = next(i for i in range(len(lines) - 2) if lines[i].strip() == "2" and lines[i + 1] == "CLASSES")
+    end = next(i for i in range(start, len(lines)) if lines[i] == "ENDSEC")
+    names = [lines[i + 2] for i in range(start, end - 2) if lines[i] == "CLASS" and lines[i + 1].strip() == "1"]
+    assert len(names) >= 2 and names == sorted(names)
+    assert sorted(c.dxf.name for c in run["dxf"].classes) == names
+
+
 def test_layers_per_web_and_webs_side_by_side(run):
     dxf = run["dxf"]
     origins = []
