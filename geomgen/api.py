@@ -315,45 +315,17 @@ def write_study(result: Mapping[str, Any], out: PathLike, *, force: bool = False
     return sorted(files)
 
 
-def plan(job: Job | PathLike | Mapping[str, Any], *, kernel_meanwhile: bool = False) -> Plan:
+def plan(job: Job | PathLike | Mapping[str, Any]) -> Plan:
     """Plan the correction of every web (maths only): the job's [correction] kind, its walls and
     limits, to each web's share of the target.  Raises Infeasible when a web's target is out of reach,
-    naming what can be reached and the constraint that binds.
-
-    kernel_meanwhile : for a plan that will be verified at once, inside `sidecar.started(plan_first=True)`
-    (the command line's `plan`): the helper process plans while this one imports the CAD kernel, which
-    `verify` needs; the same code on the same job, so the same plan.  Without such a helper, or for a web
-    given as a 3D model (its planning needs the kernel here), the plan is made here."""
+    naming what can be reached and the constraint that binds."""
     from .pipeline import plan_webs
     from .study import study_of
 
     job = _as_job(job)
-    done = _plan_beside_kernel(job) if kernel_meanwhile else None
-    works, study = done if done is not None else (plan_webs(job), study_of(job))
+    works = plan_webs(job)
     return Plan(job=job, command="plan", webs=tuple(PlannedWeb.of(w) for w in works),
-                study=MappingProxyType(study))
-
-
-def _plan_beside_kernel(job: Job):
-    """(web works, study) planned by the helper while the kernel is imported here, or None."""
-    import base64
-    import pickle
-
-    from . import sidecar
-
-    side = sidecar.active()
-    if side is None or not side.plan_first or any(w.model is not None for w in job.webs):
-        return None
-    request = {"op": "plan", "pickle": base64.b64encode(pickle.dumps(job)).decode("ascii")}
-    side.prefetch(request)
-    import cadquery  # noqa: F401  (the point: the kernel loads while the helper plans)
-
-    answer = side.ask(request)
-    if answer is None:
-        return None
-    if "raised" in answer:
-        raise pickle.loads(base64.b64decode(answer["raised"]))
-    return pickle.loads(base64.b64decode(answer["pickle"]))
+                study=MappingProxyType(study_of(job)))
 
 
 def build(job: Job | PathLike | Mapping[str, Any]) -> Plan:

@@ -108,14 +108,9 @@ def _cmd_build(args) -> int:
 
 
 def _cmd_plan(args) -> int:
-    from . import sidecar
-
     check_target(args.out, force=args.force)
     job = _load(args)
-    # one helper process for the whole command: it plans while this process loads the CAD kernel, then
-    # imports trimesh and matplotlib for the checks and figures
-    with sidecar.started(plan_first=not any(w.model is not None for w in job.webs)):
-        return _finish(args, api.plan(job, kernel_meanwhile=True))
+    return _finish(args, api.plan(job))
 
 
 def _cmd_trim(args) -> int:

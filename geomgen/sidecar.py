@@ -1,6 +1,5 @@
 """A second Python process for the slow imports of a plan: trimesh (the mesh check) and matplotlib (the
-study figure); and, for the command line's `plan`, the planning itself while this process imports the
-CAD kernel.
+study figure).
 
 A plan spends most of its time in the CAD kernel on one core.  Importing trimesh (scipy under it) and
 matplotlib costs about as much again, so `Plan.verify` starts this helper first: it imports them on the
@@ -9,11 +8,6 @@ The helper runs the very same functions the plan would run itself (`verify.mesh_
 `plots.study_svg`), and numbers cross the pipe as JSON, whose floats round-trip exactly, so the files are
 byte for byte what an in-process run writes.  If the helper cannot start, or fails, or gives a wrong
 answer shape, the work is done in-process instead: the sidecar is a speed-up, never a dependency.
-
-Started with `plan_first`, the helper reads one request before its imports: {"op": "plan", "pickle": base64
-of the pickled job} -> {"ok": true, "pickle": base64 of the pickled (web works, study)} or {"ok": true,
-"raised": base64 of the pickled GeomgenError}; the caller imports the kernel meanwhile (`api.plan`'s
-`kernel_meanwhile`).  Pickles cross between this process and its own child only.
 
 Protocol: one JSON object per line each way.  {"op": "mesh", ...} -> {"ok": true, "mass": ..., ...};
 {"op": "svg", "study": {...}} -> {"ok": true, "svg": "..."}; {"op": "band_svg", "band": {...},
@@ -38,12 +32,9 @@ _ACTIVE: Sidecar | None = None
 class Sidecar:
     """The helper process, started at once; its imports run while the caller works."""
 
-    def __init__(self, plan_first: bool = False) -> None:
-        self.plan_first = plan_first
-        self.proc = subprocess.Popen([sys.executable, "-m", "geomgen.sidecar"] + (["--plan-first"] if plan_first
-                                                                                  else []),
-                                     stdin=subprocess.PIPE, stdout=subprocess.PIPE, stderr=subprocess.DEVNULL,
-                                     text=True, bufsize=1)
+    def __init__(self) -> None:
+        self.proc = subprocess.Popen([sys.executable, "-m", "geomgen.sidecar"], stdin=subprocess.PIPE,
+                                     stdout=subprocess.PIPE, stderr=subprocess.DEVNULL, text=True, bufsize=1)
         #: request lines sent ahead whose answers are not read yet, in the order sent (answers come back
         #: in that order), and answers read but not yet asked for
         self._pending: list[str] = []
@@ -147,15 +138,11 @@ class Sidecar:
 
 
 @contextmanager
-def started(plan_first: bool = False):
-    """Run the block with a helper process at hand (or without one, if it cannot be started).  Inside a
-    block that has one already, that one serves (and the outer block ends it)."""
+def started():
+    """Run the block with a helper process at hand (or without one, if it cannot be started)."""
     global _ACTIVE
-    if _ACTIVE is not None:
-        yield _ACTIVE
-        return
     try:
-        side = Sidecar(plan_first)
+        side = Sidecar()
     except OSError:
         side = None
     _ACTIVE = side
@@ -181,34 +168,8 @@ def massprops_from_json(d: dict) -> MassProps:
                      np.array(d["second"], dtype=float).reshape(3, 3), float(d["volume"]))
 
 
-def _plan(request: dict) -> dict:
-    """The `plan` request: the job's webs planned and its study, pickled back (or the error it raised)."""
-    import base64
-    import pickle
-
-    from .errors import GeomgenError
-    from .pipeline import plan_webs
-    from .study import study_of
-
-    # the caller's own objects, pickled by the caller: this process trusts only its parent
-    job = pickle.loads(base64.b64decode(request["pickle"]))
-    try:
-        result = (plan_webs(job), study_of(job))
-    except GeomgenError as exc:
-        return {"ok": True, "raised": base64.b64encode(pickle.dumps(exc)).decode("ascii")}
-    return {"ok": True, "pickle": base64.b64encode(pickle.dumps(result)).decode("ascii")}
-
-
-def _serve(plan_first: bool = False) -> None:
-    """The helper's side: (the plan asked first,) warm the imports, then answer each request line."""
-    if plan_first:
-        line = sys.stdin.readline()
-        try:
-            answer = _plan(json.loads(line))
-        except Exception as exc:  # noqa: BLE001  any failure: the caller plans itself
-            answer = {"ok": False, "error": f"{type(exc).__name__}: {exc}"}
-        sys.stdout.write(json.dumps(answer) + "\n")
-        sys.stdout.flush()
+def _serve() -> None:
+    """The helper's side: warm the imports, then answer each request line."""
     import trimesh  # noqa: F401  (the point: imported while the caller works)
 
     from . import plots, verify
@@ -245,4 +206,4 @@ def _serve(plan_first: bool = False) -> None:
 
 
 if __name__ == "__main__":
-    _serve(plan_first="--plan-first" in sys.argv[1:])
+    _serve()

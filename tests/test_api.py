@@ -266,29 +266,3 @@ def test_the_readme_example_runs_and_prints_the_hand_figures(tmp_path, monkeypat
     assert float(m.group(1)) == pytest.approx(mass, abs=0.0006)           # printed to 3 decimals
     assert float(m.group(3)) == pytest.approx(u[1], abs=0.006)            # printed to 2 decimals
     assert abs(float(m.group(2)) - u[0]) <= 0.006
-
-
-@pytest.mark.cad
-def test_planned_in_the_helper_while_the_kernel_loads_is_the_same_plan():
-    """The command line's `plan` has its helper process plan while it imports the CAD kernel: the same
-    code on the same job, so the plan document is the in-process one, key for key and float for float
-    (JSON of both equal); the minimal job's hand-worked target (-8344 g*mm per web, module docstring) is
-    met within 26.4 g*mm.  A job out of reach raises the same Infeasible (exit 3) with the same message."""
-    from geomgen import api, sidecar
-    from geomgen.errors import Infeasible
-
-    job = api.load_job(minimal_job_dict())
-    here = api.plan(job)
-    with sidecar.started(plan_first=True) as side:
-        assert side is not None and side.plan_first
-        there = api.plan(job, kernel_meanwhile=True)
-    assert json.dumps(there.document, sort_keys=True) == json.dumps(here.document, sort_keys=True)
-    for web in there.document["webs"]:
-        assert math.hypot(web["predicted"]["unbalance_gmm"][0] - 0.0,
-                          web["predicted"]["unbalance_gmm"][1] - TARGET_PER_WEB) <= TOLERANCE_PER_WEB + 1e-9
-    far = api.load_job(minimal_job_dict({"engine.balance_factor": 1.5, "correction.max_depth": 2.0}))
-    with pytest.raises(Infeasible) as local:
-        api.plan(far)
-    with sidecar.started(plan_first=True), pytest.raises(Infeasible) as remote:
-        api.plan(far, kernel_meanwhile=True)
-    assert str(remote.value) == str(local.value) and remote.value.exit_code == 3
