@@ -421,7 +421,10 @@ def _web(t: dict, where: str, name: str, share: float, engine: Engine, base: Pat
         # plain web stays light
         from .kinds import feature_from_table
 
-        features = tuple(feature_from_table(f, where=f"{where}.features[{i}]", thickness=thickness,
+        # on a web given as a model the thickness differs from stretch to stretch: a through feature there
+        # gives its own depth (that of the stretch it goes through), as plan.json writes it
+        features = tuple(feature_from_table(f, where=f"{where}.features[{i}]",
+                                            thickness=None if model is not None else thickness,
                                             plug_material=plug_material)
                          for i, f in enumerate(raw, 1))
     web_material = _resolve_material(t, where)

@@ -253,6 +253,6 @@ def document_features(job, doc: dict, *, where: str, file_name: str = "plan.json
         # plan.json adds each feature's computed effect: figures, not part of the feature
         out[web.name] = tuple(feature_from_table({k: v for k, v in t.items() if k != "effect"},
                                                  where=f"{file_name} web {web.name} feature {i + 1}",
-                                                 thickness=web.thickness)
+                                                 thickness=None if web.model is not None else web.thickness)
                               for i, t in enumerate(rows))
     return out

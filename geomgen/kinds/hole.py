@@ -63,7 +63,8 @@ class Hole(RoundOnFace, FeatureKind):
                                    f"got {values['depth']:g} mm; leave depth out or set through = false")
                 values["depth"] = thickness
             elif "depth" not in values:
-                raise BadInput(f"{where}.depth: needed for a through hole here")
+                raise BadInput(f"{where}.depth: needed for a through hole here (on a web given as a model, the "
+                               "thickness of the stretch it goes through)")
 
     def to_table(self) -> dict:
         table = super().to_table()
