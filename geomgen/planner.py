@@ -174,12 +174,14 @@ class _Row:
     diameter: float
     radius: float
     groups: list              # relative angles to the axis, deg, in groups: [0] or [+a, -a], from the line out
-    per: np.ndarray = field(init=False)     # per group: radius x cos(angle), the lever of each of its centres
-    size: np.ndarray = field(init=False)    # per group: how many centres (1 or 2)
+    per: np.ndarray = None    # per group: radius x cos(angle), the lever of each of its centres
+    size: np.ndarray = None   # per group: how many centres (1 or 2)
 
     def __post_init__(self):
-        self.per = np.array([self.radius * math.cos(math.radians(g[0])) for g in self.groups])
-        self.size = np.array([len(g) for g in self.groups])
+        if self.per is None:   # `_Sampler._make_rows` passes them, from cosines it took once per grid angle
+            self.per = np.array([self.radius * math.cos(math.radians(g[0])) for g in self.groups])
+        if self.size is None:
+            self.size = np.array([len(g) for g in self.groups])
 
 
 @dataclass(frozen=True)
@@ -294,8 +296,11 @@ class _Sampler:
         self.axis = axis_deg
         self.r_max = clearance.r_max()
         self.rel = np.arange(0.0, 180.0 + 1e-9, ANGLE_STEP)
+        #: cos of each grid angle, as `_Row` would take it (math.cos of math.radians)
+        self._cos = [math.cos(math.radians(a)) for a in self.rel.tolist()]
         self.radii = np.arange(self.r_max, 1.0, -RADIUS_STEP) if self.r_max > 1 else np.array([])
         self._rows = {}
+        self._lists = None
         self.all_radii, self.all_both = self.radii, np.zeros((0, len(self.rel)))
         if len(self.radii):
             rr, aa = np.meshgrid(self.radii, self.rel, indexing="ij")
@@ -321,32 +326,41 @@ class _Sampler:
     def _make_rows(self, diameter, wall, odd, max_angle):
         """For each radius, the most effective row of centres (greedy from the line outwards, each at the
         first free angle a pitch from the last), none further than `max_angle` deg from the line."""
-        ok_all = self.clear_both >= 0.5 * diameter + 1e-6
+        need = 0.5 * diameter + 1e-6
         chord = diameter + wall
-        for i in np.nonzero(ok_all.any(axis=1))[0]:
-            radius = float(self.radii[i])
+        if self._lists is None:   # the grid as plain lists, once: the greedy below reads it point by point
+            self._lists = (self.rel.tolist(), self.radii.tolist(), self.clear_both.tolist())
+        rel, radii, clear_both = self._lists
+        cos, n = self._cos, len(rel)
+        for i in np.nonzero((self.clear_both >= need).any(axis=1))[0].tolist():
+            radius = radii[i]
             if chord >= 2 * radius:
                 continue
             spacing = math.degrees(2 * math.asin(chord / (2 * radius)))
-            ok = ok_all[i]
-            free = self.rel[ok].tolist()
-            groups = []
+            clear = clear_both[i]
+            groups, cosines = [], []
             if odd:
-                if not ok[0]:
+                if not clear[0] >= need:
                     continue
                 groups.append([0.0])
+                cosines.append(cos[0])
                 last = 0.0
             else:
                 last = -0.5 * spacing
             top = max_angle - 0.5 * spacing + 1e-9
             while True:
-                j = bisect.bisect_left(free, last + spacing - 1e-9)
-                if j >= len(free) or free[j] > top:
+                # the first free grid angle at least a pitch on: the first angle that far, then on to a free one
+                k = bisect.bisect_left(rel, last + spacing - 1e-9)
+                while k < n and not clear[k] >= need:
+                    k += 1
+                if k >= n or rel[k] > top:
                     break
-                last = free[j]
+                last = rel[k]
                 groups.append([last, -last])
+                cosines.append(cos[k])
             if groups:
-                yield _Row(diameter, radius, groups)
+                yield _Row(diameter, radius, groups, np.array([radius * c for c in cosines]),
+                           np.array([len(g) for g in groups]))
 
 
 # ------------------------------------------------------------------ holes and plugs
@@ -483,9 +497,33 @@ def _plan_rows(*, kind, sampler, axis, need_vec, thickness, web_density, plug_de
             by_count.setdefault(int(counts[gi]), []).append(
                 (need / float(lever[gi]), -pattern.outer, -d, pattern, int(gi) + 1, unit, has_blind))
 
+    def consider_rows(d, unit, has_blind, rows):
+        """`consider` of each row alone, all rows at once (the same sums, row by row: a cumulative sum
+        runs along its row in order, and the zeros that pad the shorter rows come after it)."""
+        if not rows:
+            return
+        per = np.zeros((len(rows), max(len(r.per) for r in rows)))
+        size = np.zeros(per.shape, dtype=rows[0].size.dtype)
+        for k, r in enumerate(rows):
+            per[k, :len(r.per)] = r.per
+            size[k, :len(r.size)] = r.size
+        good = per > 1e-9
+        lever = np.cumsum(np.where(good, per * size, 0.0), axis=1)
+        counts = np.cumsum(size, axis=1)
+        keep = (counts <= MAX_PATTERN) & good
+        if not keep.any():
+            return
+        cap = abs(unit.through if limits.through else unit.blind(unit.hi)) * lever
+        state["reach"] = max(state["reach"], float(cap[keep].max()))
+        hit = keep & (cap >= need - tolerance)
+        for k in np.flatnonzero(hit.any(axis=1)):
+            pattern = _Pattern.of(d, [rows[k]])
+            for gi in np.flatnonzero(hit[k])[:3]:
+                by_count.setdefault(int(counts[k, gi]), []).append(
+                    (need / float(lever[k, gi]), -pattern.outer, -d, pattern, int(gi) + 1, unit, has_blind))
+
     for d, unit, has_blind, rows_odd, rows_even in drills:
-        for row in list(rows_odd.values()) + list(rows_even.values()):
-            consider(d, unit, has_blind, [row])
+        consider_rows(d, unit, has_blind, list(rows_odd.values()) + list(rows_even.values()))
     # stacks of rows: a stack is its outer row alone until an inner group beats the outer row's next, so
     # while single rows reach the need with n features, a stack that cannot differ within n is skipped
     fewest = min(by_count, default=math.inf)

@@ -51,8 +51,24 @@ def rim_distance(outer: Loop, angle_deg: float, u) -> np.ndarray:
     outer : the web's rim (Lines and Arcs exact; splines and ellipses on chords within RIM_CHORD_MM);
     u : (n,) lateral offsets, mm.
     """
-    e_s, e_u = axes(angle_deg)
     u = np.atleast_1d(np.asarray(u, dtype=float))
+    # a layout's search asks the same lines of the same rim again and again (each depth it tries): the loop
+    # is frozen, so what it answered is kept on it (as its flattenings are), a bounded number of answers
+    cache = outer.__dict__.setdefault("_rim_distance", {})
+    key = (float(angle_deg), u.tobytes())
+    if key not in cache:
+        if len(cache) >= RIM_CACHE_SIZE:
+            cache.clear()
+        cache[key] = _rim_distance(outer, float(angle_deg), u)
+    return cache[key].copy()
+
+
+#: how many answers of `rim_distance` one rim keeps
+RIM_CACHE_SIZE = 4096
+
+
+def _rim_distance(outer: Loop, angle_deg: float, u: np.ndarray) -> np.ndarray:
+    e_s, e_u = axes(angle_deg)
     best = np.full(u.shape, -np.inf)
     segments = outer.lines_and_arcs(RIM_CHORD_MM).segments
     lines = np.array([(*s.start, *s.end) for s in segments if isinstance(s, Line)]).reshape(-1, 4)
