@@ -738,6 +738,14 @@ class Loop:
 
     segments: tuple
 
+    def __getstate__(self):
+        # what a loop remembers of its own answers (flattenings, rim distances) stays behind when it is
+        # pickled (to the helper process): only its segments travel
+        return {"segments": self.segments}
+
+    def __setstate__(self, state):
+        object.__setattr__(self, "segments", state["segments"])
+
     def __post_init__(self):
         segs = tuple(self.segments)
         object.__setattr__(self, "segments", segs)

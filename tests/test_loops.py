@@ -338,3 +338,21 @@ def test_random_polygons_match_shapely_and_trimesh(pts):
     loop = Loop.from_points(np.asarray(poly.exterior.coords))
     assert loop.oriented(True).area_moments().sxx == pytest.approx(m.sxx, rel=1e-9)
     assert loop.oriented(False).area_moments().sxx == pytest.approx(-m.sxx, rel=1e-9)
+
+
+def test_a_loop_pickles_without_what_it_remembered():
+    """A rim answers rim_distance from memory the second time (the same figures: a 65 mm circle at
+    u = 10 mm is sqrt(65^2 - 10^2) = 64.226 mm out, Pythagoras), and pickles to the same bytes as a fresh
+    loop: what it remembers does not travel to the helper process."""
+    import pickle
+
+    from geomgen.kinds.radial_maths import rim_distance
+
+    rim = Loop((Arc((0.0, 0.0), 65.0, 0.0, 360.0),))
+    fresh = pickle.dumps(Loop((Arc((0.0, 0.0), 65.0, 0.0, 360.0),)))
+    first = rim_distance(rim, 30.0, [10.0])
+    again = rim_distance(rim, 30.0, [10.0])
+    assert first[0] == again[0] == pytest.approx(math.sqrt(65.0 ** 2 - 10.0 ** 2), abs=1e-12)
+    again[0] = 0.0                        # an answer handed out is the caller's own copy
+    assert rim_distance(rim, 30.0, [10.0])[0] == first[0]
+    assert pickle.dumps(rim) == fresh
