@@ -540,9 +540,12 @@ def rim_program(job, work, numbered: list, m: Machining) -> NCProgram:
     h.comment("SET-UP: the web on its edge on a dividing head or rotary table whose axis runs along the machine's "
               "X, on a mandrel through the main bore (or held by its shaft), the crank axis on the head's axis, "
               "inner face towards -X. Each hole is drilled with its radial line indexed straight up (+Z).")
+    size = (f"web given as a 3D model, {h.show(section.thickness)} high overall (X0 on its inner face, "
+            "z = 0 of the model; each hole's X is its height above that face)"
+            if getattr(section, "model", None) is not None else f"web {h.show(section.thickness)} thick")
     h.comment(f"WORK ZERO G54: X0 on the web's inner face, +X towards the outer face; Y0 Z0 on the crank axis "
-              f"(the head's axis). The rim is at most {h.show(rim_max)} from the axis; web "
-              f"{h.show(section.thickness)} thick. Check Z0 by touching the rim at a known radius.")
+              f"(the head's axis). The rim is at most {h.show(rim_max)} from the axis; {size}. Check Z0 by "
+              "touching the rim at a known radius.")
     h.comment(f"SAFE HEIGHT Z{h.length(safe)} (rim + {h.show(m.clearance)}); each hole's R plane is "
               f"{h.show(m.retract)} above the rim where the drill meets it.")
     h.comment("TOOLS (T number = H number; reach = from the rim to the tip):")
