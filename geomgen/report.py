@@ -380,8 +380,10 @@ def _web_block(w, entry: dict) -> str:
          "(the plug's own mass is in the loads table).</p>" if any(f.fills for f in w.all_features)
          else "") if rows else "<p>No features: the web already meets its target.</p>"
     considered = "".join(f"<li>{_e(c)}</li>" for c in entry.get("considered", []))
+    size = (f"given as a 3D model, {_n(entry['thickness_mm'], 2)} mm high overall"
+            if getattr(w.section, "model", None) is not None else f"{_n(entry['thickness_mm'], 2)} mm thick")
     return "".join([
-        f'<div class="web-block"><h3>Web {_e(w.spec.name)}: {_n(entry["thickness_mm"], 2)} mm thick, '
+        f'<div class="web-block"><h3>Web {_e(w.spec.name)}: {size}, '
         f'{_e(entry["material"])} ({_n(entry["density_g_cm3"], 3)} g/cm³), crankpin bore '
         f'{_n(entry["pin_bore_mm"], 2)} mm</h3>',
         '<p class="legend"><span><i class="sw" style="border-color:#b8322a;background:#fff"></i>material taken off'

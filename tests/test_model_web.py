@@ -428,6 +428,9 @@ def test_shipped_sample_plans_on_its_model(tmp_path):
         exact = np.array(web["exact"]["unbalance_gmm"])
         predicted = np.array(web["predicted"]["unbalance_gmm"])
         assert np.linalg.norm(exact - predicted) <= 1e-6 * np.linalg.norm(predicted)
+    # the report heads each web with what the model is, not a thickness it does not have (the maker's
+    # sample: the 16 mm disc's boss stands to z = 21)
+    assert "Web a: given as a 3D model, 21.00 mm high overall" in (tmp_path / "out" / "report.html").read_text()
     text = (tmp_path / "out" / "web-a-outer.nc").read_text()
     assert "Z0 on the outer face where these features enter it, z 16" in " ".join(
         line.strip("()") for line in text.splitlines())
