@@ -5,8 +5,8 @@ work, and writes everything into a hidden staging folder beside the target
 (`staged`); only when every file is written is the staging folder moved into
 place.  A failure on the way leaves the target as it was.
 
-The staging folder is named `.NAME.writing-PID-XXXXXXXX` (NAME the target's
-name, PID the writing process).  Ctrl-C, SIGTERM and any exception remove it;
+The staging folder is named `.NAME.writing-PID-RANDOM` (NAME the target's
+name, PID the writing process, RANDOM eight random characters).  Ctrl-C, SIGTERM and any exception remove it;
 a process killed outright (SIGKILL, a crash of the interpreter) cannot, so the
 next run into the same target removes every such folder whose process is gone.
 """
