@@ -236,7 +236,15 @@ def _draw_web(msp, doc, w, entry: dict, tables: dict, *, offset) -> float:
     top = oy + r_rim + 22
     _text(msp, f"web {w.spec.name}: seen from the outer face, web frame, mm", (ox - r_rim, top),
           layer=lay["TABLE"], height=TITLE_H)
-    _text(msp, f"thickness {sec.thickness:.2f} mm, {entry['material']} {entry['density_g_cm3']:g} g/cm3; "
+    if getattr(sec, "model", None) is not None:
+        # a model is not one thickness: say where its features' depths start (operations.csv: entry_z)
+        faces = sorted({(f.face, sec.column(f)[1] if f.face == "outer" else sec.column(f)[0])
+                        for f in w.all_features if f.face in ("outer", "inner")})
+        starts = ", ".join(f"{face} face at z = {z:.2f} mm" for face, z in faces) or "none"
+        size = (f"3D model {sec.thickness:.2f} mm high overall; depths from the face each feature enters: {starts}")
+    else:
+        size = f"thickness {sec.thickness:.2f} mm"
+    _text(msp, f"{size}, {entry['material']} {entry['density_g_cm3']:g} g/cm3; "
                "dashed = cut from the inner face", (ox - r_rim, top - 6), layer=lay["TABLE"])
     y = oy - r_rim - 22
     x0 = ox - r_rim

@@ -293,10 +293,10 @@ def _study_figures(study: dict | None) -> str:
               "force directions from +Y, counter-clockwise in the crank frame (web a seen from its outer face).</p>")
 
 
-def _sheet_notes(job, doc: dict) -> str:
+def _sheet_notes(job, doc: dict, webs=None) -> str:
     from .sheet import sheet_notes
 
-    items = "".join(f"<li>{_e(line)}</li>" for line in sheet_notes(job, doc))
+    items = "".join(f"<li>{_e(line)}</li>" for line in sheet_notes(job, doc, webs))
     return f'<ul class="note">{items}</ul>'
 
 
@@ -555,7 +555,7 @@ def report_html(*, job, doc: dict, webs, study: dict | None, study_svg: bytes | 
         "<h2>Verification: prediction, exact solid and mesh</h2>", _verification(doc),
         "<h2>Loads at speed</h2>", _safety(doc),
         section_html(nc),
-        "<h2>Reading the shop sheet</h2>", _sheet_notes(job, doc),
+        "<h2>Reading the shop sheet</h2>", _sheet_notes(job, doc, webs),
         f'<p class="note">Files of this plan: plan.json, operations.csv (the machinist\'s sheet, '
         f"{_e(job.output.sheet_units)}), drawing.dxf, the STEP and STL of each web, an NC program per web and "
         "face with new work. "

@@ -40,7 +40,7 @@ ANGLE_DECIMALS = 1
 
 #: the columns every kind may fill, before the kinds' own and the effects
 _COMMON = (("web", False), ("feature", False), ("status", False), ("kind", False), ("face", False),
-           ("x", True), ("y", True), ("diameter", True), ("through", False), ("bottom", False),
+           ("entry_z", True), ("x", True), ("y", True), ("diameter", True), ("through", False), ("bottom", False),
            ("depth", True), ("tip_depth", True), ("point_angle_deg", False), ("drill_size", False), ("drill", True))
 _EFFECTS = (("mass_change_g", False), ("unbalance_change_x_gmm", False), ("unbalance_change_y_gmm", False))
 
@@ -179,9 +179,15 @@ def sheet_rows(*, job, doc: dict, webs) -> list[dict]:
         tables = entry["existing_features"] + entry["planned_features"]
         for number, ((status, feature), table) in enumerate(zip(features, tables), start=1):
             rho = _plug_density(feature, job)
-            rows.append(feature_row(feature, web=w.spec.name, number=number, status=status,
-                                    effect=table["effect"], thickness=w.section.column_thickness(feature), units=units,
-                                    correction=job.correction, plug_density=rho))
+            row = feature_row(feature, web=w.spec.name, number=number, status=status,
+                              effect=table["effect"], thickness=w.section.column_thickness(feature), units=units,
+                              correction=job.correction, plug_density=rho)
+            if feature.face in ("outer", "inner"):
+                # the height (web frame, z from the inner face) of the face the feature enters, which its
+                # depth is measured from: the thickness or 0 on a flat web, that stretch's face on a model
+                z_bot, z_top = w.section.column(feature)
+                row[f"entry_z_{SUFFIX[units]}"] = set_length(z_top if feature.face == "outer" else z_bot, units)
+            rows.append(row)
     return rows
 
 
@@ -194,16 +200,19 @@ def operations_csv(*, job, doc: dict, webs) -> bytes:
     return out.getvalue().encode("utf-8")
 
 
-def _plug_lines(job, doc: dict) -> list[str]:
+def _plug_lines(job, doc: dict, webs=None) -> list[str]:
     """One line per kind of plug bore on the sheet: how it is made and the limits of its fit."""
     inch = job.output.sheet_units == "inch"
     series = job.correction.drill_series
     seen, lines = set(), []
-    for entry in doc["webs"]:
-        thickness = entry["thickness_mm"]
-        for f in entry["features"]:
+    for i, entry in enumerate(doc["webs"]):
+        work = webs[i] if webs is not None else None
+        for k, f in enumerate(entry["features"]):
             if f["kind"] != "plug":
                 continue
+            # the web a plug goes through: a model's stretch where it sits, else the web's thickness
+            thickness = (work.section.column_thickness(work.all_features[k]) if work is not None
+                         else entry["thickness_mm"])
             bore = plug_bore(diameter_mm=f["diameter"], length_mm=f.get("length", thickness), thickness_mm=thickness,
                              drills=job.correction.drills, point_angle_deg=job.correction.point_angle,
                              fit=job.correction.plug_fit, where=f"web {entry['name']} plug")
@@ -233,10 +242,11 @@ def _plug_lines(job, doc: dict) -> list[str]:
     return lines
 
 
-def sheet_notes(job, doc: dict) -> list[str]:
+def sheet_notes(job, doc: dict, webs=None) -> list[str]:
     """How to read operations.csv, as plain lines (no comment marks) for the report, the drawing and the README.
 
-    job : geomgen.job.Job;  doc : the plan.json dict (its "cautions" end the list).
+    job : geomgen.job.Job;  doc : the plan.json dict (its "cautions" end the list);  webs : the planned
+    pipeline.WebWork list, when there is one (a model web's plug goes through its own stretch).
     """
     u = SUFFIX[job.output.sheet_units]
     lines = [
@@ -249,6 +259,9 @@ def sheet_notes(job, doc: dict) -> list[str]:
         "pocket's angles are mirrored (-angle_end .. -angle_start).",
         "feature: the number on drawing.dxf and in report.html (E1, E2 ... there for existing features). "
         "status existing: already on the web, check it is there; status new: machine it, in row order.",
+        "entry_z: the height of the face the feature enters above the inner face (z of the web frame): the "
+        "web's thickness for the outer face, 0 for the inner; on a web given as a 3D model, the face of the "
+        "flat stretch it enters, where Z0 is touched off and depth is measured from.",
         "kind hole, pocket or plug. depth: full-diameter depth from the face (a pocket's floor, a plug bore's "
         "flat bottom); tip_depth: the drill's travel to its tip (a through hole's drill goes on until it cuts "
         "full diameter at the far face); through: yes or no; bottom: point or flat, empty when through.",
@@ -265,7 +278,7 @@ def sheet_notes(job, doc: dict) -> list[str]:
                      "inside them is inside the metric limits.")
         lines.append("drawing.dxf stays in mm (its header says so), as the STEP files do: compare its "
                      "figures with this sheet at 1 in = 25.4 mm.")
-    lines += _plug_lines(job, doc)
+    lines += _plug_lines(job, doc, webs)
     lines.append("mass_change and unbalance_change: what each feature does to its web, in the web frame "
                  "(seen from the outer face).")
     lines += [f"CAUTION: {c}" for c in doc.get("cautions", [])]

@@ -431,10 +431,17 @@ def test_shipped_sample_plans_on_its_model(tmp_path):
     # the report heads each web with what the model is, not a thickness it does not have (the maker's
     # sample: the 16 mm disc's boss stands to z = 21)
     assert "Web a: given as a 3D model, 21.00 mm high overall" in (tmp_path / "out" / "report.html").read_text()
+    # the sheet and the drawing say where each depth starts: the disc's outer face, z = 16 (the maker's)
+    import csv
+
+    maker = _maker()
+    rows = list(csv.DictReader((tmp_path / "out" / "operations.csv").read_text().splitlines()))
+    assert rows and {float(r["entry_z_mm"]) for r in rows} == {maker.SAMPLE_T}
+    assert "depths from the face each feature enters: outer face at z = 16.00 mm" in \
+        (tmp_path / "out" / "drawing.dxf").read_text()
     text = (tmp_path / "out" / "web-a-outer.nc").read_text()
     assert "Z0 on the outer face where these features enter it, z 16" in " ".join(
         line.strip("()") for line in text.splitlines())
-    maker = _maker()
     rise = maker.SAMPLE_BOSS_TOP - maker.SAMPLE_T
     assert rise == pytest.approx(5.0)
     pos, mode, bottoms = {"X": None, "Y": None, "Z": None}, None, []
