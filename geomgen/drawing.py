@@ -238,8 +238,7 @@ def _draw_web(msp, doc, w, entry: dict, tables: dict, *, offset) -> float:
           layer=lay["TABLE"], height=TITLE_H)
     if getattr(sec, "model", None) is not None:
         # a model is not one thickness: say where its features' depths start (operations.csv: entry_z)
-        faces = sorted({(f.face, sec.column(f)[1] if f.face == "outer" else sec.column(f)[0])
-                        for f in w.all_features if f.face in ("outer", "inner")})
+        faces = sorted({(f.face, sec.entry_z(f)) for f in w.all_features if sec.entry_z(f) is not None})
         starts = ", ".join(f"{face} face at z = {z:.2f} mm" for face, z in faces) or "none"
         size = (f"3D model {sec.thickness:.2f} mm high overall; depths from the face each feature enters: {starts}")
     else:

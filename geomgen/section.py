@@ -87,6 +87,12 @@ class WebSection:
         from the rim (a prism: both faces)."""
         return (0.0, self.thickness)
 
+    def entry_z(self, feature) -> float | None:
+        """The height (web frame) of the face the feature enters, its depth's start: the top of its column
+        for the outer face, the bottom for the inner; None for one that enters no face (a radial hole)."""
+        z_bot, z_top = self.column(feature)
+        return {"outer": z_top, "inner": z_bot}.get(feature.face)
+
     def column_thickness(self, feature) -> float:
         """How much web the feature's drill meets between its two faces, mm (a prism: the thickness)."""
         z0, z1 = self.column(feature)

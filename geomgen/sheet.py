@@ -182,11 +182,9 @@ def sheet_rows(*, job, doc: dict, webs) -> list[dict]:
             row = feature_row(feature, web=w.spec.name, number=number, status=status,
                               effect=table["effect"], thickness=w.section.column_thickness(feature), units=units,
                               correction=job.correction, plug_density=rho)
-            if feature.face in ("outer", "inner"):
-                # the height (web frame, z from the inner face) of the face the feature enters, which its
-                # depth is measured from: the thickness or 0 on a flat web, that stretch's face on a model
-                z_bot, z_top = w.section.column(feature)
-                row[f"entry_z_{SUFFIX[units]}"] = set_length(z_top if feature.face == "outer" else z_bot, units)
+            entry_z = w.section.entry_z(feature)     # where its depth starts (a model: its stretch's face)
+            if entry_z is not None:
+                row[f"entry_z_{SUFFIX[units]}"] = set_length(entry_z, units)
             rows.append(row)
     return rows
 

@@ -600,10 +600,11 @@ def programs(job, webs) -> tuple[list[NCProgram], list[str]]:
             (z_bot, z_top), = columns
             # Z0 on the face the features enter; where the model stands higher on that side (a boss, a
             # step), the safe height and the R plane are raised by as much
-            above = (work.section.thickness - z_top) if face == "outer" else z_bot
+            entry_z = work.section.entry_z(mine[0][1])
+            above = (work.section.thickness - entry_z) if face == "outer" else entry_z
             mm = replace(m, clearance=m.clearance + above, retract=m.retract + above) if above > 1e-9 else m
             out.append(_Face(job, work, face, mine, mm, thickness=z_top - z_bot, raised=above,
-                             entry_z=z_top if face == "outer" else z_bot).write())
+                             entry_z=entry_z).write())
         rim = [(n, f) for n, f in numbered if f.kind == RIM_KIND]
         if rim:
             out.append(rim_program(job, work, rim, m))
