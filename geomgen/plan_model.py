@@ -90,9 +90,9 @@ def plan_model_web(*, name: str, section, existing, target, tolerance: float, me
     if "radial" in methods:
         from .model3d import radial_band
         from .plan_radial import MAX_SPREAD_DEG
-        from .planner import _direction_angle
+        from .planner import direction_angle
 
-        band = radial_band(section, axis_deg=_direction_angle(before.unbalance - target),
+        band = radial_band(section, axis_deg=direction_angle(before.unbalance - target),
                            spread_deg=MAX_SPREAD_DEG, r_in=0.5 * section.main_bore + limits.min_wall)
     common = dict(section=section, name=name, existing=tuple(existing), limits=limits,
                   plug_material=plug_material, keep_out=tuple(keep_out))
@@ -129,7 +129,7 @@ def plan_model_web(*, name: str, section, existing, target, tolerance: float, me
                           for p in plans)
         best = replace(best, why=f"auto: {best.method} won with {len(best.features)} operation(s) (fewest "
                                  f"operations, then least mass changed) of the plans that reach: {tried}; "
-                                 + best.why.split("; ", 1)[-1])
+                                 + best.why)
     return best
 
 
@@ -186,7 +186,7 @@ def _across_columns(*, section, name, existing, limits, plug_material, keep_out,
     (SHARE_OF_REACH of its reach, along the need), the next takes what is left, and so on, each planned
     with the others' features already on the web (walls to them kept, in plan and in 3D) and the last
     depth solved on the exact effects of all of them."""
-    from .planner import _machining_order
+    from .planner import machining_order
 
     order = sorted(((r, k) for (m, k), r in reaches.items() if m == method and r), reverse=True)
     if len(order) < 2:
@@ -217,7 +217,7 @@ def _across_columns(*, section, name, existing, limits, plug_material, keep_out,
         raise Infeasible(f"together they come to {np.linalg.norm(base.unbalance - before.unbalance):.0f} g*mm "
                          f"of the {np.linalg.norm(target - before.unbalance):.0f} g*mm needed")
     names = ", ".join(f"{k} (z {columns[k - 1].z_bot:g} .. {columns[k - 1].z_top:g} mm)" for k in used)
-    return replace(last, method=method, features=tuple(_machining_order(done)), before=before, predicted=base,
+    return replace(last, method=method, features=tuple(machining_order(done)), before=before, predicted=base,
                    target=tuple(target),
                    why=f"{method} as the job asks: {len(done)} operation(s) over the model's columns {names}, "
                        f"{abs(base.mass - before.mass):.2f} g changed; no one column reaches the target alone; "

@@ -149,7 +149,7 @@ def allowed_region(*, section, existing, limits: Limits, keep_out=()) -> shapely
 
 
 # ------------------------------------------------------------------ helpers
-def _direction_angle(vec) -> float:
+def direction_angle(vec) -> float:
     """Angle of a web-frame vector, deg from +Y counter-clockwise."""
     x, y = float(vec[0]), float(vec[1])
     return math.degrees(math.atan2(-x, y))
@@ -886,8 +886,8 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
         return _plan_lightened(name=name, section=section, existing=existing, target=target, tolerance=tolerance,
                                method=method, limits=limits, plug_material=plug_material, keep_out=keep_out,
                                lighten=lighten, clearance=clearance, before=before, hint=_hint)
-    remove_axis = _direction_angle(-need_vec)
-    add_axis = _direction_angle(need_vec)
+    remove_axis = direction_angle(-need_vec)
+    add_axis = direction_angle(need_vec)
     blind_max = thickness - limits.min_wall
     tried, reaches = [], {}
     methods = list(METHODS) if method == "auto" else [method]
@@ -941,7 +941,7 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
                           plug_material, keep_out, _hint)
     candidates.sort(key=lambda c: (c[0], c[1], c[2]))
     count, dmass, _, chosen, feats = candidates[0]
-    feats = _machining_order(feats)
+    feats = machining_order(feats)
     predicted = before + _total(feats, thickness=thickness, web_density=web_density, plug_density=plug_density)
     side = "pin side" if (chosen != "plugs") == (need_vec[1] < 0) else "counterweight side"
     if method == "auto":
@@ -955,7 +955,7 @@ def plan_web(*, name: str, section, existing, target, tolerance: float, method: 
                    tuple(tried))
 
 
-def _machining_order(feats):
+def machining_order(feats):
     """Pockets first (they need the face), then holes and plug bores by angle, clockwise from +Y, then
     radial holes (their own set-up): each kind's `order_key`."""
     return sorted(feats, key=lambda f: f.order_key())
@@ -1034,7 +1034,7 @@ def _plan_lightened(*, name, section, existing, target, tolerance, method, limit
         extra = _lightening_holes(name=name, section=section, clearance=clearance, limits=limits, lighten=lighten)
         rest = correction(extra)
     taken = -_total(extra, thickness=thickness, web_density=rho).mass
-    feats = _machining_order(list(extra) + list(rest.features))
+    feats = machining_order(list(extra) + list(rest.features))
     if extra[0].kind == "pocket":
         how = "2 kidney pockets mirrored about the Y axis, each symmetric about the X axis,"
     else:
