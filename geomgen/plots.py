@@ -1,174 +1,207 @@
-"""Pictures of a balance study (matplotlib, Agg; imported only when called).
+"""Charts of a balance study and of the band on the balance factor (pygal, SVG; imported only when called).
 
-The figure reads a `study.study()` result dict, nothing else, so it can be
-redrawn from a saved study.json.
+The study chart reads a `study.study()` result dict, nothing else, so it can be redrawn from a saved
+study.json; the band chart reads plan.json's (or study.json's) "balance_factor_band" and "contributions".
+
+Each picture is two pygal charts side by side, nested in one SVG document under one title.  pygal writes
+a random chart id, a comment with today's date and a small configuration script for its own JavaScript
+(which we do not ship); the id is fixed per chart and the comments and scripts are left out, so the same
+figures give the same bytes on any day and the report fetches nothing.
 """
 
 from __future__ import annotations
 
-import io
 import math
+import re
+from xml.sax.saxutils import escape
+
+FONT = "DejaVu Sans, Arial, Helvetica, sans-serif"
+INK = "#1d2733"
+GRID = "#c9d0d6"
+BLUE, ORANGE, RED, GREEN, GREY = "#1f5f8b", "#c8701e", "#b8322a", "#2a7d4f", "#5b6673"
 
 
-def study_figure(result: dict):
-    """The study figure: force locus (polar) beside the balance-factor sweep.
+def _chart(kind: str, chart_id: str, colours: list[str], *, width: int, height: int, **config):
+    """A pygal chart of `kind` ("XY" or "HorizontalBar") in the house style, no JavaScript, a fixed id."""
+    import pygal
+    from pygal.style import Style
 
-    Returns a matplotlib Figure (not attached to pyplot).
-    """
-    from matplotlib.figure import Figure
+    style = Style(background="white", plot_background="white", foreground=INK, foreground_strong=INK,
+                  foreground_subtle=GREY, font_family=FONT, title_font_family=FONT, label_font_size=11,
+                  major_label_font_size=11, title_font_size=13, legend_font_size=11, value_font_size=11,
+                  colors=tuple(colours), opacity=".28", opacity_hover=".28", stroke_opacity="1",
+                  stroke_opacity_hover="1", stroke_width="1.6", stroke_width_hover="1.6", transition="0ms",
+                  guide_stroke_color=GRID, major_guide_stroke_color=GRID, guide_stroke_dasharray="2,3",
+                  major_guide_stroke_dasharray="2,3")
+    settings = dict(width=width, height=height, style=style, js=[], disable_xml_declaration=True,
+                    explicit_size=True, show_dots=False, legend_at_bottom=True, truncate_legend=-1,
+                    truncate_label=-1, print_values=False, margin=8, margin_bottom=14, spacing=8)
+    chart = getattr(pygal, kind)(**(settings | config))
+    chart.uuid = chart_id
+    return chart
 
+
+def _clean(svg: str) -> str:
+    """pygal's SVG without its comments (they carry today's date) and its scripts (for a library not shipped)."""
+    svg = re.sub(r"<!--.*?-->", "", svg, flags=re.S)
+    return re.sub(r"<script\b[^>]*>.*?</script>|<script\b[^>]*/>", "", svg, flags=re.S)
+
+
+def _compose(width: int, height: int, title: str, panels: list[tuple[int, int, str]],
+             notes: list[tuple[float, float, str]] = ()) -> bytes:
+    """One SVG document: a white page, the title on top, each (x, y, chart SVG) nested where it says, and
+    any (x, y, text) notes."""
+    out = ["<?xml version='1.0' encoding='utf-8'?>",
+           f'<svg xmlns="http://www.w3.org/2000/svg" width="{width}" height="{height}" '
+           f'viewBox="0 0 {width} {height}" font-family="{FONT}">',
+           f'<rect width="{width}" height="{height}" fill="white"/>',
+           f'<text x="{width / 2:g}" y="24" text-anchor="middle" font-size="15" fill="{INK}">{escape(title)}</text>']
+    for x, y, text in notes:
+        out.append(f'<text x="{x:g}" y="{y:g}" text-anchor="middle" font-size="12" fill="{INK}">{escape(text)}</text>')
+    for x, y, svg in panels:
+        out.append(_clean(svg).replace("<svg ", f'<svg x="{x}" y="{y}" ', 1))
+    out.append("</svg>\n")
+    return "\n".join(out).encode("utf-8")
+
+
+def _nice_limit(value: float) -> float:
+    """The round number (1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6 or 8 times a power of ten) at or just above
+    `value` (> 0): an axis limit that pygal can divide into round ticks."""
+    power = 10.0 ** math.floor(math.log10(value))
+    return next(k * power for k in (1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0)
+                if k * power >= value * (1 - 1e-12))
+
+
+def study_svg(result: dict) -> bytes:
+    """The study picture as SVG bytes: the force's locus in the crank frame beside the balance-factor
+    sweep.  The same result gives the same bytes."""
     inp = result["inputs"]
-    # No canvas is attached here: savefig picks the one its format needs (SVG or Agg), so an SVG
-    # never pays for loading the raster backend.
-    fig = Figure(figsize=(12.5, 6.4))
-    polar = fig.add_subplot(1, 2, 1, projection="polar")
-    sweep_ax = fig.add_subplot(1, 2, 2)
-
-    # Polar: 0 at the top = +Y of the crank frame, angles counter-clockwise as
-    # on the webs, so the picture is the crank frame seen from +Z.
-    polar.set_theta_zero_location("N")
-    polar.set_theta_direction(1)
-    fx = [row["force_x_N"] for row in result["cycle"]]
-    fy = [row["force_y_N"] for row in result["cycle"]]
-    phi = [math.atan2(-x, y) for x, y in zip(fx, fy)]
-    mag = [math.hypot(x, y) for x, y in zip(fx, fy)]
-    phi.append(phi[0])
-    mag.append(mag[0])
-    polar.plot(phi, mag, color="tab:blue", lw=1.8, label="residual force over one revolution")
-    rmax = max(max(mag), 1e-9) * 1.15
-    tilt = math.radians(inp["cylinder_tilt_deg"])
-    polar.plot([tilt, tilt], [0.0, rmax], color="tab:red", lw=1.2, ls="--",
-               label="cylinder axis (towards the head)")
-    polar.plot([phi[0]], [mag[0]], "o", color="tab:red", label="force at TDC (0 deg)")
-    polar.plot([phi[90]], [mag[90]], "s", color="tab:green", label="force at 90 deg after TDC")
-    polar.set_ylim(0.0, rmax)
-    # Panel titles as figure text: axes titles make matplotlib measure every
-    # tick label to place them, a third of the drawing time.
-    fig.text(0.255, 0.885, "Residual force on the engine at max rpm\n"
-             "radius: force, N; angle: its direction, deg from +Y (ccw)",
-             ha="center", va="bottom", fontsize=9.5)
-    polar.tick_params(axis="y", labelsize=7.5)
-    polar.legend(loc="upper center", bbox_to_anchor=(0.5, -0.06), ncol=2, fontsize=8, frameon=False)
-
-    bf_axis = [row["balance_factor"] for row in result["sweep"]]
-    has_balancer = inp["balancer"] is not None
-    styles = (("peak_N", "resultant", "black"), ("peak_along_N", "along cylinder", "tab:blue"),
-              ("peak_across_N", "across cylinder", "tab:orange"))
-    for key, label, colour in styles:
-        free = [row[key] for row in result["sweep_no_balancer"]]
-        tag = " (no balancer)" if has_balancer else ""
-        on_top = 3 if key == "peak_N" else 2  # the resultant over what it hides
-        sweep_ax.plot(bf_axis, free, color=colour, lw=1.3, ls="--" if has_balancer else "-",
-                      label=f"peak {label}{tag}", zorder=on_top)
-        if has_balancer:
-            given = [row[key] for row in result["sweep"]]
-            sweep_ax.plot(bf_axis, given, color=colour, lw=1.8, zorder=on_top,
-                          label=f"peak {label} (with balancer, share {inp['balancer']['share']:g})")
-    sweep_ax.axvline(inp["balance_factor"], color="tab:red", lw=1.0,
-                     label=f"job balance factor {inp['balance_factor']:g}")
-    best = result["best_balance_factor"]
-    best_peak = next(row["peak_N"] for row in result["sweep"] if row["balance_factor"] == best)
-    sweep_ax.plot([best], [best_peak], "v", color="black", ms=8,
-                  label=f"smallest peak: BF {best:g}, {best_peak:.0f} N")
-    sweep_ax.set_xlabel("balance factor (share of reciprocating mass), -")
-    sweep_ax.set_ylabel("peak force over one revolution, N")
-    sweep_ax.set_xlim(0.0, max(row["balance_factor"] for row in result["sweep"]))
-    sweep_ax.set_ylim(bottom=0.0)
-    sweep_ax.grid(True, lw=0.4, alpha=0.6)
-    fig.text(0.765, 0.835, f"Balance-factor sweep at {inp['max_rpm']:g} rpm",
-             ha="center", va="bottom", fontsize=10)
-    sweep_ax.legend(fontsize=7.5, loc="upper right")
-
     title = (f"stroke {inp['stroke_mm']:g} mm, rod {inp['rod_length_mm']:g} mm, "
              f"{inp['max_rpm']:g} rpm, balance factor {inp['balance_factor']:g}, "
              f"peak {result['peak_N']:.0f} N")
     if result.get("name"):
         title = f"{result['name']}: {title}"
-    fig.suptitle(title, fontsize=11, y=0.985)
-    fig.subplots_adjust(left=0.04, right=0.97, top=0.82, bottom=0.17, wspace=0.25)
-    return fig
+
+    # Left: the residual force's tip over one revolution, drawn in the crank frame seen from +Z (+Y up
+    # towards the crankpin at TDC, +X right): its distance from the centre is the force, its direction
+    # the force's direction.  Both axes share one range, so the panel is square and a circle stays round.
+    cycle = result["cycle"]
+    pts = [(row["force_x_N"], row["force_y_N"]) for row in cycle]
+    lim = _nice_limit(max(max(math.hypot(x, y) for x, y in pts), 1e-9) * 1.08)
+    tilt = math.radians(inp["cylinder_tilt_deg"])
+    axis_end = (-lim * math.sin(tilt), lim * math.cos(tilt))
+    locus = _chart("XY", "geomgen-study-locus", [BLUE, RED, RED, GREEN], width=560, height=610,
+                   title="Residual force on the engine at max rpm, N",
+                   x_title="force along +X, N", y_title="force along +Y (towards the head at TDC), N",
+                   range=(-lim, lim), xrange=(-lim, lim), legend_at_bottom_columns=2)
+    locus.add("the force's tip over one revolution", pts + pts[:1])
+    locus.add("cylinder axis (towards the head)", [(0.0, 0.0), axis_end], stroke_style={"dasharray": "7,4"})
+    locus.add("force at TDC (0 deg)", [pts[0]], stroke=False, show_dots=True, dots_size=5)
+    locus.add("force at 90 deg after TDC", [pts[90 % len(pts)]], stroke=False, show_dots=True, dots_size=5)
+
+    # Right: the peak forces over a revolution against the balance factor.
+    sweep = result["sweep"]
+    bf_axis = [row["balance_factor"] for row in sweep]
+    has_balancer = inp["balancer"] is not None
+    best = result["best_balance_factor"]
+    best_peak = next(row["peak_N"] for row in sweep if row["balance_factor"] == best)
+    top = _nice_limit(max(max(row[k] for row in rows for k in ("peak_N", "peak_along_N", "peak_across_N"))
+                          for rows in (sweep, result["sweep_no_balancer"])) * 1.05)
+    styles = (("peak_N", "resultant", INK), ("peak_along_N", "along cylinder", BLUE),
+              ("peak_across_N", "across cylinder", ORANGE))
+    colours, series = [], []
+    for key, label, colour in styles:
+        tag = " (no balancer)" if has_balancer else ""
+        colours.append(colour)
+        series.append((f"peak {label}{tag}", [row[key] for row in result["sweep_no_balancer"]],
+                       {"dasharray": "6,3", "width": 1.4} if has_balancer else {"width": 1.6}))
+        if has_balancer:
+            colours.append(colour)
+            series.append((f"peak {label} (with balancer, share {inp['balancer']['share']:g})",
+                           [row[key] for row in sweep], {"width": 2.0}))
+    colours += [RED, INK]
+    bf_chart = _chart("XY", "geomgen-study-sweep", colours, width=660, height=610,
+                      title=f"Balance-factor sweep at {inp['max_rpm']:g} rpm",
+                      x_title="balance factor (share of reciprocating mass), -",
+                      y_title="peak force over one revolution, N", range=(0.0, top),
+                      xrange=(0.0, max(bf_axis)), legend_at_bottom_columns=2)
+    for label, values, stroke in series:
+        bf_chart.add(label, list(zip(bf_axis, values)), stroke_style=stroke)
+    bf_chart.add(f"job balance factor {inp['balance_factor']:g}",
+                 [(inp["balance_factor"], 0.0), (inp["balance_factor"], top)], stroke_style={"width": 1.2})
+    bf_chart.add(f"smallest peak: BF {best:g}, {best_peak:.0f} N", [(best, best_peak)], stroke=False,
+                 show_dots=True, dots_size=6)
+    return _compose(1250, 650, title, [(10, 36, locus.render(is_unicode=True)),
+                                       (580, 36, bf_chart.render(is_unicode=True))])
 
 
-def warm_up() -> None:
-    """Import what drawing the study figure needs (the sidecar does this while a plan builds its solids)."""
-    import matplotlib.backends.backend_svg  # noqa: F401
-    from matplotlib.figure import Figure  # noqa: F401
-
-
-def study_svg(result: dict) -> bytes:
-    """The study figure as SVG bytes; the same result gives the same bytes."""
-    import matplotlib
-
-    fig = study_figure(result)
-    buf = io.BytesIO()
-    # A fixed hash salt and no date keep the SVG byte-stable between runs;
-    # text stays text (fonttype none) so labels are searchable and small.
-    with matplotlib.rc_context({"svg.hashsalt": "geomgen-study", "svg.fonttype": "none"}):
-        fig.savefig(buf, format="svg", metadata={"Date": None})
-    return buf.getvalue()
-
-
-def band_figure(band: dict, contributions: list[dict], *, tolerance_points: float, title: str = ""):
-    """How sure the balance factor is: the Monte Carlo histogram of the balance factor (with the first-order
-    normal curve, the asked value and its tolerance) beside the inputs that move it, in balance-factor
-    points.  Reads plan.json's (or study.json's) "balance_factor_band" and "contributions"."""
-    from matplotlib.figure import Figure
-
-    fig = Figure(figsize=(12.5, 5.6))
-    hist = fig.add_subplot(1, 2, 1)
-    bars = fig.add_subplot(1, 2, 2)
-
+def band_svg(band: dict, contributions: list[dict], *, tolerance_points: float, title: str = "") -> bytes:
+    """How sure the balance factor is, as SVG bytes: the Monte Carlo histogram of the balance factor (with
+    the first-order normal curve, the asked value and its tolerance) beside the inputs that move it, in
+    balance-factor points.  The same figures give the same bytes."""
     edges = [100.0 * e for e in band["histogram"]["edges"]]
     counts = band["histogram"]["counts"]
     width = edges[1] - edges[0]
     total = max(sum(counts), 1)
     density = [c / (total * width) for c in counts]
-    hist.bar(edges[:-1], density, width=width, align="edge", color="tab:blue", alpha=0.55,
-             label=f"Monte Carlo, {band['samples']} samples")
+    steps = [(edges[0], 0.0)]
+    for x0, x1, d in zip(edges[:-1], edges[1:], density):
+        steps += [(x0, d), (x1, d)]
+    steps.append((edges[-1], 0.0))
     lin = band["linear"]
     mu, u = 100.0 * lin["mean"], 100.0 * lin["u"]
+    normal = []
     if u > 0:
         xs = [edges[0] + (edges[-1] - edges[0]) * i / 200.0 for i in range(201)]
-        hist.plot(xs, [math.exp(-0.5 * ((x - mu) / u) ** 2) / (u * math.sqrt(2 * math.pi)) for x in xs],
-                  color="tab:orange", lw=1.6, label="first order (GUM): normal, same mean and u")
+        normal = [(x, math.exp(-0.5 * ((x - mu) / u) ** 2) / (u * math.sqrt(2 * math.pi))) for x in xs]
+    peak = max([d for d in density] + [y for _, y in normal] + [1e-12])
+    top = _nice_limit(peak * 1.08)
     asked = 100.0 * band["asked"]
-    hist.axvspan(asked - tolerance_points, asked + tolerance_points, color="tab:green", alpha=0.12,
-                 label=f"asked {band['asked']:g} ± {tolerance_points:g} points")
-    hist.axvline(asked, color="tab:green", lw=1.2)
-    hist.axvline(100.0 * band["nominal"], color="black", lw=1.0, ls=":", label="the plan's own figure")
-    for key in ("low_95", "high_95"):
-        hist.axvline(100.0 * band[key], color="tab:red", lw=1.2, ls="--",
-                     label="95 % interval (Monte Carlo)" if key == "low_95" else None)
-    hist.set_xlabel("balance factor achieved, % of the reciprocating mass")
-    hist.set_ylabel("probability density, 1/point")
-    hist.set_ylim(bottom=0.0)
-    hist.grid(True, lw=0.4, alpha=0.6)
-    hist.legend(fontsize=7.5, loc="upper center", bbox_to_anchor=(0.5, -0.14), ncol=2, frameon=False)
+    lo_x = min(edges[0], asked - tolerance_points)
+    hi_x = max(edges[-1], asked + tolerance_points)
+    pad = 0.03 * (hi_x - lo_x)
+    hist = _chart("XY", "geomgen-band-histogram", [GREEN, BLUE, ORANGE, GREEN, INK, RED, RED],
+                  width=640, height=560, title="Balance factor achieved: where the cranks land",
+                  x_title="balance factor achieved, % of the reciprocating mass",
+                  y_title="probability density, 1/point", range=(0.0, top), xrange=(lo_x - pad, hi_x + pad),
+                  legend_at_bottom_columns=2)
+    # the tolerance band first, so the histogram and the lines are drawn over it
+    span = [(asked - tolerance_points, 0.0), (asked - tolerance_points, top), (asked + tolerance_points, top),
+            (asked + tolerance_points, 0.0)]
+    hist.add(f"asked {band['asked']:g} ± {tolerance_points:g} points", span, fill=True, stroke_style={"width": 0.6})
+    hist.add(f"Monte Carlo, {band['samples']} samples", steps, fill=True, stroke_style={"width": 1.0})
+    if normal:
+        hist.add("first order (GUM): normal, same mean and u", normal, stroke_style={"width": 1.8})
+    else:
+        hist.add("first order (GUM): no spread", [])
+    hist.add(f"asked {band['asked']:g}", [(asked, 0.0), (asked, top)], stroke_style={"width": 1.4})
+    nominal = 100.0 * band["nominal"]
+    hist.add("the plan's own figure", [(nominal, 0.0), (nominal, top)], stroke_style={"dasharray": "2,3"})
+    for key, label in (("low_95", "95 % interval (Monte Carlo)"), ("high_95", "")):
+        x = 100.0 * band[key]
+        hist.add(label or None, [(x, 0.0), (x, top)], stroke_style={"dasharray": "7,4", "width": 1.4})
 
-    rows = contributions[:8][::-1]
-    names = [r["input"] if len(r["input"]) <= 44 else r["input"][:42] + "…" for r in rows]
-    values = [r["bf_points"] for r in rows]
-    bars.barh(range(len(rows)), values, color="tab:blue", alpha=0.75)
-    bars.set_yticks(range(len(rows)))
-    bars.set_yticklabels(names, fontsize=7.5)
-    bars.axvline(tolerance_points, color="tab:green", lw=1.2, label=f"tolerance ±{tolerance_points:g} points")
-    bars.set_xlabel("± balance-factor points across the input's bounds")
-    bars.grid(True, axis="x", lw=0.4, alpha=0.6)
-    bars.legend(fontsize=7.5, loc="lower right")
-    fig.text(0.27, 0.93, "Balance factor achieved: where the cranks land", ha="center", fontsize=10)
-    fig.text(0.78, 0.93, "What moves it most", ha="center", fontsize=10)
-    if title:
-        fig.suptitle(title, fontsize=11, y=0.995)
-    fig.subplots_adjust(left=0.06, right=0.98, top=0.9, bottom=0.3, wspace=0.55)
-    return fig
+    rows = contributions[:8]
+    names = [r["input"] if len(r["input"]) <= 60 else r["input"][:58] + "…" for r in rows]
+    longest = max([tolerance_points] + [r["bf_points"] for r in rows])
+    bars = _chart("HorizontalBar", "geomgen-band-contributions", [BLUE], width=560, height=560,
+                  title="What moves it most",
+                  x_title="± balance-factor points over the input's range", show_legend=False,
+                  value_formatter=lambda v: f"{v:g}", range=(0.0, _nice_limit(1.18 * longest)))
+    # pygal lays horizontal bars bottom-up: the list is given smallest first so the largest stands on top;
+    # the job's tolerance is the first (lowest) bar, green, to read the others against; each label ends
+    # with its bar's figure
+    entries = [{"value": tolerance_points, "color": GREEN}]
+    labels = [f"the job's tolerance, ±{tolerance_points:.2f}"]
+    for name, r in reversed(list(zip(names, rows))):
+        entries.append({"value": r["bf_points"], "color": BLUE})
+        labels.append(f"{name}, ±{r['bf_points']:.2f}")
+    bars.x_labels = labels
+    bars.add("± balance-factor points", entries)
+    return _compose(1230, 610 if title else 590, title, [(10, 40 if title else 20, hist.render(is_unicode=True)),
+                                                        (660, 40 if title else 20, bars.render(is_unicode=True))])
 
 
-def band_svg(band: dict, contributions: list[dict], *, tolerance_points: float, title: str = "") -> bytes:
-    """The band figure as SVG bytes; the same figures give the same bytes."""
-    import matplotlib
-
-    fig = band_figure(band, contributions, tolerance_points=tolerance_points, title=title)
-    buf = io.BytesIO()
-    with matplotlib.rc_context({"svg.hashsalt": "geomgen-band", "svg.fonttype": "none"}):
-        fig.savefig(buf, format="svg", metadata={"Date": None})
-    return buf.getvalue()
+def warm_up() -> None:
+    """Import what drawing the charts needs (the sidecar does this while a plan builds its solids)."""
+    import pygal  # noqa: F401
