@@ -522,10 +522,11 @@ def _study(study: dict | None, figure: bytes | None = None) -> str:
     bal = study["inputs"].get("balancer")
     note = ("the job has a balancer shaft: solid lines with it, dashed without" if bal else
             "the job has no balancer shaft")
-    return (f'<div class="study">{svg}</div><p class="note">Left: the residual shaking force over one revolution '
-            f"at max speed, webs at target, in the crank frame (0° = +Y, towards the cylinder head when it is "
-            f"upright). Right: the peak force against the balance factor; {note}. Smallest peak at balance factor "
-            f"{_n(study['best_balance_factor'], 2)}.</p>")
+    return (f'<div class="study">{svg}</div><p class="note">Left: the tip of the residual shaking force over one '
+            f"revolution at max speed, webs at target, drawn in the crank frame seen from +Z (+Y up, towards the "
+            f"cylinder head when it is upright): the distance from the centre is the force, the direction from the "
+            f"centre its direction. Right: the peak force against the balance factor; {note}. Smallest peak at "
+            f"balance factor {_n(study['best_balance_factor'], 2)}.</p>")
 
 
 def report_html(*, job, doc: dict, webs, study: dict | None, study_svg: bytes | None = None, nc=None) -> bytes:

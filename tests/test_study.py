@@ -224,3 +224,26 @@ def test_with_the_real_engine_type():
     r = study_mod.study(engine=eng, balancer=job.Balancer(share=0.5, offset=(60.0, -20.0)))
     ref = study_mod.study(engine=FakeEngine(), balancer=FakeBalancer())
     assert r["cycle"] == ref["cycle"] and r["sweep"] == ref["sweep"]
+
+
+def test_the_chart_is_the_same_on_any_day_and_fetches_nothing(demo_files):
+    # pygal writes today's date in a comment and a script for its own JavaScript; neither is kept, and the
+    # two charts carry fixed ids (a random id would change the bytes on every run)
+    text = demo_files["study.svg"].decode("utf-8")
+    assert "<!--" not in text and "<script" not in text and "http://pygal" not in text
+    root = ET.fromstring(demo_files["study.svg"])
+    nested = [el.get("id") for el in root.iter() if el.tag.endswith("svg") and el is not root]
+    assert nested == ["chart-geomgen-study-locus", "chart-geomgen-study-sweep"]
+
+
+def test_the_locus_axes_share_one_range_so_a_circle_stays_round(demo):
+    # the left panel is the crank frame: x and y get the same limits, the round number just above the
+    # largest force times 1.08 (the 1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6, 8 series: common practice for axis limits)
+    from geomgen.plots import _nice_limit
+
+    assert _nice_limit(4777.0 * 1.08) == 6000.0
+    assert _nice_limit(0.0123) == pytest.approx(0.015)
+    assert _nice_limit(2.0) == 2.0
+    text = study_mod.render(demo)["study.svg"].decode("utf-8")
+    lim = _nice_limit(demo["peak_N"] * 1.08)
+    assert f">{-lim:g}<" in text.replace("\u2212", "-") or f">{int(-lim)}<" in text.replace("\u2212", "-")
