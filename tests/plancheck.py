@@ -73,6 +73,23 @@ def run_cli(args) -> int:
     return main([str(a) for a in args])
 
 
+def cli_output(args):
+    """geomgen.cli.main in this process, as `python -m geomgen ARGS` runs it: a CompletedProcess with its
+    exit code and what it printed (stdout, stderr).  Tests that must see a fresh interpreter (what it
+    imports, a signal) start one; the rest save the interpreter's start and imports (about 0.5 s a run)."""
+    import contextlib
+    import io
+    import subprocess
+
+    from geomgen.cli import main
+
+    args = [str(a) for a in args]
+    out, err = io.StringIO(), io.StringIO()
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
+        code = main(args)
+    return subprocess.CompletedProcess(args, code, out.getvalue(), err.getvalue())
+
+
 def read_plan(folder) -> dict:
     return json.loads((Path(folder) / "plan.json").read_text())
 

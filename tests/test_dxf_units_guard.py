@@ -14,8 +14,6 @@ from __future__ import annotations
 
 import json
 import math
-import subprocess
-import sys
 from pathlib import Path
 
 import ezdxf
@@ -26,6 +24,7 @@ from geomgen.loops import circle
 from geomgen.planner import MAX_GRID_POINTS, Limits, plan_web
 from geomgen.section import WebSection, parametric_web
 
+import plancheck as pc
 from conftest import DROP, write_job
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -43,11 +42,9 @@ def web_dxf(path, *, radius, insunits=None):
     return path
 
 
-def run_cli(*argv, timeout=300):
-    """`python -m geomgen ...` in a subprocess; the timeout only stops a hang from hanging the suite."""
-    env = {"PYTHONPATH": str(ROOT), "PATH": "/usr/bin:/bin"}
-    return subprocess.run([sys.executable, "-m", "geomgen", *map(str, argv)], capture_output=True, text=True,
-                          timeout=timeout, env=env, cwd=ROOT)
+def run_cli(*argv):
+    """`geomgen ARGV` (in this process: plancheck.cli_output)."""
+    return pc.cli_output(argv)
 
 
 def one_line(err: str) -> str:

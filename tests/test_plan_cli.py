@@ -15,8 +15,6 @@ from __future__ import annotations
 import math
 import os
 import re
-import subprocess
-import sys
 
 import numpy as np
 import pytest
@@ -38,8 +36,11 @@ def _write(tmp_path, job, name="job.toml"):
 
 
 def _geomgen(*args, cwd):
-    return subprocess.run([sys.executable, "-m", "geomgen", *map(str, args)], capture_output=True, text=True,
-                          cwd=cwd, timeout=300)
+    """`geomgen ARGS` run from the folder `cwd` (in this process: plancheck.cli_output)."""
+    import contextlib
+
+    with contextlib.chdir(cwd):
+        return pc.cli_output(args)
 
 
 # ------------------------------------------------------------------ infeasible
