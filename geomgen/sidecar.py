@@ -1,9 +1,10 @@
-"""A second Python process for the slow imports of a plan: trimesh (the mesh check) and matplotlib (the
-study figure).
+"""A second Python process for the slow imports and the pictures of a plan: trimesh (the mesh check) and
+the charts and back-plots.
 
-A plan spends most of its time in the CAD kernel on one core.  Importing trimesh (scipy under it) and
-matplotlib costs about as much again, so `Plan.verify` starts this helper first: it imports them on the
-other core while the kernel works, then integrates the written STL files and draws study.svg when asked.
+A plan spends most of its time in the CAD kernel on one core.  Importing trimesh (scipy under it) costs
+about a second more, so `Plan.verify` starts this helper first: it imports it on the other core while the
+kernel works, draws study.svg, the band chart and the back-plots when asked and integrates the written
+STL files.
 The helper runs the very same functions the plan would run itself (`verify.mesh_web_from_files`,
 `plots.study_svg`), and numbers cross the pipe as JSON, whose floats round-trip exactly, so the files are
 byte for byte what an in-process run writes.  If the helper cannot start, or fails, or gives a wrong
@@ -169,9 +170,15 @@ def massprops_from_json(d: dict) -> MassProps:
 
 
 def _serve() -> None:
-    """The helper's side: warm the imports, then answer each request line."""
-    import trimesh  # noqa: F401  (the point: imported while the caller works)
+    """The helper's side: warm the imports, then answer each request line.  trimesh (scipy under it,
+    about a second) is imported by a thread while the loop already answers: a chart asked for first is
+    drawn at once, and the first mesh request waits on the import's module lock until trimesh is in."""
+    import threading
 
+    def warm_mesh() -> None:
+        import trimesh  # noqa: F401  (the point: imported while the caller works)
+
+    threading.Thread(target=warm_mesh, daemon=True).start()
     from . import plots, verify
 
     plots.warm_up()
