@@ -74,9 +74,7 @@ def section_svg(work, *, title: str) -> bytes:
     panel = fig.panel((75.0, top, width, height), xlim, ylim, xlabel="y along the web, mm (crankpin +Y)",
                       ylabel="z, mm (inner face 0)", min_tick_px=40.0)
     for lo, hi in layers:
-        ok = np.isfinite(lo) & np.isfinite(hi)
-        edges = np.flatnonzero(np.diff(np.concatenate([[0], ok.astype(int), [0]])))
-        for a, b in zip(edges[::2], edges[1::2]):       # each stretch [a, b) where the layer is present
+        for a, b in svgdraw.stretches(np.isfinite(lo) & np.isfinite(hi)):   # where the layer is present
             ring = np.vstack([np.column_stack([ys[a:b], hi[a:b]]), np.column_stack([ys[a:b], lo[a:b]])[::-1]])
             fig.polygon(panel, ring, fill=MATERIAL, stroke=None, cls="material")
         fig.path(panel, ys, hi, stroke="#44515e", width=1.1, cls="outline")

@@ -116,19 +116,16 @@ def widen(lim, frac: float, at_least: float = 0.0):
     return lo - pad, hi + pad
 
 
+def stretches(ok) -> list[tuple[int, int]]:
+    """The index ranges [a, b) where the boolean array `ok` is true throughout."""
+    edges = np.flatnonzero(np.diff(np.concatenate([[0], np.asarray(ok, dtype=np.int8), [0]])))
+    return [(int(a), int(b)) for a, b in zip(edges[::2], edges[1::2])]
+
+
 def runs(xs, ys) -> list[np.ndarray]:
     """The stretches of finite points between NaN breaks, each an (n, 2) array of at least 2 points."""
-    pts = np.column_stack([np.asarray(xs, dtype=float), np.asarray(ys, dtype=float)])
-    ok = np.isfinite(pts).all(axis=1)
-    out, start = [], None
-    for i, good in enumerate(list(ok) + [False]):
-        if good and start is None:
-            start = i
-        elif not good and start is not None:
-            if i - start >= 2:
-                out.append(pts[start:i])
-            start = None
-    return out
+    pts = np.column_stack([np.asarray(xs, dtype=float).ravel(), np.asarray(ys, dtype=float).ravel()])
+    return [pts[a:b] for a, b in stretches(np.isfinite(pts).all(axis=1)) if b - a >= 2]
 
 
 class Figure:
@@ -172,10 +169,10 @@ class Figure:
              cls: str | None = None, closed: bool = False, fill: str = "none") -> ET.Element | None:
         """One <path> through the data points (NaN breaks start a new M; a stretch that starts where the
         last one ended goes on without one), in `panel`, clipped to it."""
+        X, Y = panel.px(xs, ys)
         parts, last = [], None
-        for run in runs(xs, ys):
-            X, Y = panel.px(run[:, 0], run[:, 1])
-            coords = [(fmt(a), fmt(b)) for a, b in zip(X, Y)]
+        for run in runs(X, Y):
+            coords = [(fmt(a), fmt(b)) for a, b in run.tolist()]
             if coords[0] != last:
                 parts.append(f"M{coords[0][0]} {coords[0][1]}")
             parts.append("L" + " ".join(f"{a} {b}" for a, b in coords[1:]))

@@ -78,25 +78,29 @@ def _draw_outline(fig, panel, loops, feats) -> None:
         fig.label(panel, tx, ty, str(n), dx=6, dy=6, size=10)
 
 
-def _draw_paths(fig, panel, prog, moves, scale: float, axes=(0, 1)) -> None:
-    xs, ys = _polyline(moves, axes=axes, rapid=True, scale=scale)
-    fig.path(panel, xs, ys, stroke=RAPID, width=0.9, dash="5 3", cls="rapid")
-    for k, (n, _tool) in enumerate(sorted(prog.tools.items())):
-        colour = COLOURS[k % len(COLOURS)]
-        xs, ys = _polyline(moves, axes=axes, rapid=False, tool=n, scale=scale)
-        fig.path(panel, xs, ys, stroke=colour, width=1.4, cls=f"feed T{n}")
-        fig.plus(panel, _plunge_points(moves, n, scale, axes), colour=colour, cls=f"plunge T{n}")
+def _lines(prog, moves, scale: float, axes=(0, 1)) -> dict:
+    """{None: the rapids' (xs, ys), tool number: its feeds' (xs, ys)}, each with NaN between moves."""
+    out = {None: _polyline(moves, axes=axes, rapid=True, scale=scale)}
+    for n in sorted(prog.tools):
+        out[n] = _polyline(moves, axes=axes, rapid=False, tool=n, scale=scale)
+    return out
 
 
-def _path_points(moves, scale: float, axes=(0, 1), rapid: bool | None = None) -> np.ndarray:
-    """Every finite point the paths pass through (rapids, feeds or both), (n, 2)."""
-    xs, ys = [], []
-    for r in ((True, False) if rapid is None else (rapid,)):
-        x, y = _polyline(moves, axes=axes, rapid=r, scale=scale)
-        xs.append(x)
-        ys.append(y)
-    pts = np.column_stack([np.concatenate(xs), np.concatenate(ys)]) if xs else np.zeros((0, 2))
+def _finite(*lines) -> np.ndarray:
+    """The finite points of (xs, ys) polylines, (n, 2)."""
+    pts = np.column_stack([np.concatenate([x for x, _ in lines] + [[]]),
+                           np.concatenate([y for _, y in lines] + [[]])])
     return pts[np.isfinite(pts).all(axis=1)]
+
+
+def _draw_paths(fig, panel, lines: dict, plunges: dict) -> None:
+    xs, ys = lines[None]
+    fig.path(panel, xs, ys, stroke=RAPID, width=0.9, dash="5 3", cls="rapid")
+    for k, n in enumerate(sorted(plunges)):
+        colour = COLOURS[k % len(COLOURS)]
+        xs, ys = lines[n]
+        fig.path(panel, xs, ys, stroke=colour, width=1.4, cls=f"feed T{n}")
+        fig.plus(panel, plunges[n], colour=colour, cls=f"plunge T{n}")
 
 
 def drawing(prog, checked) -> svgdraw.Figure:
@@ -115,6 +119,9 @@ def drawing(prog, checked) -> svgdraw.Figure:
     top, side = y + 16, 400.0
     left_box, right_box = (75.0, top, side, side), (WIDTH - 30.0 - side, top, side, side)
     view = prog.face if prog.face != "rim" else "outer"
+    axes = (0, 1) if prog.face != "rim" else (0, 2)
+    lines = _lines(prog, moves, scale, axes)
+    plunges = {n: _plunge_points(moves, n, scale, axes) for n in sorted(prog.tools)}
     loops, feats = _outline_points(prog, view, scale)
     everything = [p for p, _ in loops] + [p for _, p, _ in feats]
     if prog.face == "rim":
@@ -139,7 +146,7 @@ def drawing(prog, checked) -> svgdraw.Figure:
             holes.append(np.column_stack([np.array([f.z - half, f.z - half, f.z, f.z + half, f.z + half]),
                                           np.array([f.entry, f.entry - f.depth, tip, f.entry - f.depth,
                                                     f.entry])]) * scale)
-        xr, yr = svgdraw.bounds(block, *holes, _path_points(moves, scale, (0, 2)))
+        xr, yr = svgdraw.bounds(block, *holes, _finite(*lines.values()))
         right = fig.panel(right_box, svgdraw.widen(xr, 0.05), svgdraw.widen(yr, 0.05),
                           title="side view of the set-up, every hole at its index",
                           xlabel=f"X along the crank axis from the inner face, {unit}",
@@ -147,14 +154,14 @@ def drawing(prog, checked) -> svgdraw.Figure:
         fig.polygon(right, block, fill=WEB_FILL, stroke=svgdraw.INK, width=1.0, cls="outline")
         for h in holes:
             fig.path(right, h[:, 0], h[:, 1], stroke=svgdraw.MUTED, width=0.9, dash="1.5 2", cls="feature")
-        _draw_paths(fig, right, prog, moves, scale, axes=(0, 2))
+        _draw_paths(fig, right, lines, plunges)
     else:
-        xl, yl = svgdraw.bounds(*everything, _path_points(moves, scale))
+        xl, yl = svgdraw.bounds(*everything, _finite(*lines.values()))
         xlabel = f"X on the {prog.face} face, {unit}" + (" (the web frame's x mirrored)"
                                                           if prog.face == "inner" else "")
         left = fig.panel(left_box, svgdraw.widen(xl, 0.04), svgdraw.widen(yl, 0.04), title="the whole face",
                          xlabel=xlabel, ylabel=f"Y, {unit} (crankpin up)")
-        feeds = _path_points(moves, scale, rapid=False)
+        feeds = _finite(*(v for n, v in lines.items() if n is not None))
         if len(feeds):
             lo, hi = feeds.min(axis=0), feeds.max(axis=0)
             pad = 0.15 * max(hi - lo) + 6.0 * scale
@@ -164,14 +171,14 @@ def drawing(prog, checked) -> svgdraw.Figure:
         right = fig.panel(right_box, xr, yr, title="the toolpaths, closer", xlabel=xlabel)
         for panel in (left, right):
             _draw_outline(fig, panel, loops, feats)
-            _draw_paths(fig, panel, prog, moves, scale)
+            _draw_paths(fig, panel, lines, plunges)
     entries = [("the web", {"fill": WEB_FILL, "stroke": svgdraw.INK}),
                ("planned feature (numbered as on the sheet)", {"stroke": svgdraw.MUTED, "dash": "1.5 2"}),
                ("rapid (G0)", {"stroke": RAPID, "width": 0.9, "dash": "5 3"})]
     for k, (n, tool) in enumerate(sorted(prog.tools.items())):
         entries.append((f"feed, {_tool_label(n, tool, prog.units)}",
                         {"stroke": COLOURS[k % len(COLOURS)], "width": 1.4,
-                         "plus": bool(_plunge_points(moves, n, scale, (0, 1) if prog.face != "rim" else (0, 2)))}))
+                         "plus": bool(plunges[n])}))
     legend_top = top + side + 48
     fig.height = legend_top + fig.legend(left_box[0], legend_top, entries, width=WIDTH - left_box[0] - 30) + 12
     return fig
