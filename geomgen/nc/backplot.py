@@ -1,17 +1,18 @@
-"""The back-plot: what a program's simulated moves do, drawn over the face view (matplotlib, SVG).
+"""The back-plot: what a program's simulated moves do, drawn over the face view (plain SVG, geomgen.svgdraw).
 
 Feeds are solid lines, one colour per tool; rapids are dashed grey.  A face program is drawn as the
 machinist sees the face (x mirrored for the inner face); a rim program as the web's outline with the
 holes' axes beside a side view of the set-up (X along the crank axis, Z up along the indexed hole).
+Every panel is at equal aspect in the program's unit; the same program gives the same bytes.
 """
 
 from __future__ import annotations
 
-import io
 import math
 
 import numpy as np
 
+from .. import svgdraw
 from .geometry import face_loop
 
 COLOURS = ("#b8322a", "#1f5f8b", "#2a7d4f", "#8a5a00", "#6b3fa0", "#00838f", "#c2185b", "#455a64")
@@ -48,105 +49,141 @@ def _plunge_points(moves, tool, scale: float, axes=(0, 1)):
     return sorted(pts)
 
 
-def _outline(ax, prog, face: str, scale: float) -> None:
+WEB_FILL = "#e4e8ee"
+RAPID = "#8a939c"
+#: the figure's width, px (the report shows it about this wide)
+WIDTH = 1000.0
+
+
+def _outline_points(prog, view: str, scale: float):
+    """[(points, fill)] of the web's outline and bores, and [(number, points, tag)] of the features, as
+    seen on `view`, in the program's unit."""
     sec = prog.section
-    view = face if face != "rim" else "outer"
-    for loop, fill in [(sec.outer, "#e4e8ee")] + [(b, "#ffffff") for b in sec.bores]:
-        pts = face_loop(loop, view).points(0.05) * scale
-        ax.fill(pts[:, 0], pts[:, 1], facecolor=fill, edgecolor="#1d2733", lw=0.7, zorder=1)
+    loops = [(face_loop(loop, view).points(0.05) * scale, fill)
+             for loop, fill in [(sec.outer, WEB_FILL)] + [(b, "#ffffff") for b in sec.bores]]
+    feats = []
     for n, f in prog.features:
-        pts = face_loop(f.footprint(), view).points(0.05) * scale
-        closed = np.vstack([pts, pts[:1]])
-        ax.plot(closed[:, 0], closed[:, 1], color="#5b6673", lw=0.6, ls=":", zorder=2)
         tx, ty = f.tag_point()
         if view == "inner":
             tx = -tx
-        ax.annotate(str(n), (tx * scale, ty * scale), xytext=(6, 6), textcoords="offset points", fontsize=7,
-                    color="#1d2733", zorder=6)
+        feats.append((n, face_loop(f.footprint(), view).points(0.05) * scale, (tx * scale, ty * scale)))
+    return loops, feats
 
 
-def _paths(ax, prog, moves, scale: float, axes=(0, 1), legend: bool = True) -> None:
-    xs, ys = _polyline(moves, axes=axes, rapid=True, scale=scale)
-    ax.plot(xs, ys, color="#8a939c", lw=0.6, ls=(0, (3, 2)), label="rapid (G0)" if legend else None, zorder=3)
-    for k, (n, tool) in enumerate(sorted(prog.tools.items())):
+def _draw_outline(fig, panel, loops, feats) -> None:
+    for pts, fill in loops:
+        fig.polygon(panel, pts, fill=fill, stroke=svgdraw.INK, width=1.0, cls="outline")
+    for n, pts, (tx, ty) in feats:
+        fig.polygon(panel, pts, fill="none", stroke=svgdraw.MUTED, width=0.9, dash="1.5 2", cls="feature")
+        fig.label(panel, tx, ty, str(n), dx=6, dy=6, size=10)
+
+
+def _lines(prog, moves, scale: float, axes=(0, 1)) -> dict:
+    """{None: the rapids' (xs, ys), tool number: its feeds' (xs, ys)}, each with NaN between moves."""
+    out = {None: _polyline(moves, axes=axes, rapid=True, scale=scale)}
+    for n in sorted(prog.tools):
+        out[n] = _polyline(moves, axes=axes, rapid=False, tool=n, scale=scale)
+    return out
+
+
+def _finite(*lines) -> np.ndarray:
+    """The finite points of (xs, ys) polylines, (n, 2)."""
+    pts = np.column_stack([np.concatenate([x for x, _ in lines] + [[]]),
+                           np.concatenate([y for _, y in lines] + [[]])])
+    return pts[np.isfinite(pts).all(axis=1)]
+
+
+def _draw_paths(fig, panel, lines: dict, plunges: dict) -> None:
+    xs, ys = lines[None]
+    fig.path(panel, xs, ys, stroke=RAPID, width=0.9, dash="5 3", cls="rapid")
+    for k, n in enumerate(sorted(plunges)):
         colour = COLOURS[k % len(COLOURS)]
-        xs, ys = _polyline(moves, axes=axes, rapid=False, tool=n, scale=scale)
-        ax.plot(xs, ys, color=colour, lw=0.9, label=f"feed, {_tool_label(n, tool, prog.units)}" if legend else None,
-                zorder=4)
-        pts = _plunge_points(moves, n, scale, axes)
-        if pts:
-            ax.plot([p[0] for p in pts], [p[1] for p in pts], ls="none", marker="+", ms=9, mew=1.2, color=colour,
-                    zorder=5)
+        xs, ys = lines[n]
+        fig.path(panel, xs, ys, stroke=colour, width=1.4, cls=f"feed T{n}")
+        fig.plus(panel, plunges[n], colour=colour, cls=f"plunge T{n}")
 
 
-def figure(prog, checked):
-    """The back-plot of one checked program (a matplotlib Figure, no pyplot), in the program's unit."""
-    from matplotlib.figure import Figure
-
+def drawing(prog, checked) -> svgdraw.Figure:
+    """The back-plot of one checked program as an svgdraw.Figure (its `panels` give the px transforms),
+    in the program's unit."""
     moves = checked.simulation.moves
     minutes = checked.time_s / 60.0
     scale = 1.0 if prog.units == "mm" else 1.0 / 25.4
     unit = "mm" if prog.units == "mm" else "in"
     title = (f"{prog.name}: web {prog.web}, {prog.face} face" if prog.face != "rim"
              else f"{prog.name}: web {prog.web}, radial holes from the rim")
-    fig = Figure(figsize=(11.0, 5.6))
-    left = fig.add_subplot(1, 2, 1)
-    right = fig.add_subplot(1, 2, 2)
+    fig = svgdraw.Figure(WIDTH, 600.0)
+    y = fig.wrapped(20, 22, f"{title}; about {minutes:.1f} min at the feeds and rapid rate (plus set-up and "
+                    "indexing); feeds solid, rapids dashed, + where a tool feeds straight down",
+                    width=WIDTH - 40, size=13)
+    top, side = y + 16, 400.0
+    left_box, right_box = (75.0, top, side, side), (WIDTH - 30.0 - side, top, side, side)
+    view = prog.face if prog.face != "rim" else "outer"
+    axes = (0, 1) if prog.face != "rim" else (0, 2)
+    lines = _lines(prog, moves, scale, axes)
+    plunges = {n: _plunge_points(moves, n, scale, axes) for n in sorted(prog.tools)}
+    loops, feats = _outline_points(prog, view, scale)
+    everything = [p for p, _ in loops] + [p for _, p, _ in feats]
     if prog.face == "rim":
-        _outline(left, prog, "rim", scale)
-        left.set_title("the web seen from its outer face: the holes' axes", fontsize=9)
+        axes_lines = []
         for _n, f in prog.features:
             a = math.radians(f.angle + 90.0)
-            left.plot([0, f.entry * math.cos(a) * scale], [0, f.entry * math.sin(a) * scale], color="#5b6673",
-                      lw=0.5, ls="-.")
+            axes_lines.append(np.array([[0.0, 0.0], [f.entry * math.cos(a) * scale, f.entry * math.sin(a) * scale]]))
+        xl, yl = svgdraw.bounds(*everything, *axes_lines)
+        left = fig.panel(left_box, svgdraw.widen(xl, 0.04), svgdraw.widen(yl, 0.04),
+                         title="the web seen from its outer face: the holes' axes",
+                         xlabel=f"X on the outer face, {unit}", ylabel=f"Y, {unit} (crankpin up)")
+        _draw_outline(fig, left, loops, feats)
+        for line in axes_lines:
+            fig.path(left, line[:, 0], line[:, 1], stroke=svgdraw.MUTED, width=0.8, dash="6 3 1.5 3", cls="axis")
         t = prog.thickness * scale
         r = prog.section.rim_radius_max * scale
-        right.fill([0, t, t, 0], [0, 0, r, r], facecolor="#e4e8ee", edgecolor="#1d2733", lw=0.7)
+        block = np.array([[0.0, 0.0], [t, 0.0], [t, r], [0.0, r]])
+        holes = []
         for _n, f in prog.features:
             half = 0.5 * f.diameter
             tip = f.entry - f.depth - f.point_length
-            right.plot(np.array([f.z - half, f.z - half, f.z, f.z + half, f.z + half]) * scale,
-                       np.array([f.entry, f.entry - f.depth, tip, f.entry - f.depth, f.entry]) * scale,
-                       color="#5b6673", lw=0.5, ls=":")
-        _paths(right, prog, moves, scale, axes=(0, 2))
-        right.set_xlabel(f"X along the crank axis from the inner face, {unit}")
-        right.set_ylabel(f"Z from the crank axis (hole indexed up), {unit}")
-        right.set_title("side view of the set-up, every hole at its index", fontsize=9)
-        right.legend(fontsize=7, loc="lower right")
+            holes.append(np.column_stack([np.array([f.z - half, f.z - half, f.z, f.z + half, f.z + half]),
+                                          np.array([f.entry, f.entry - f.depth, tip, f.entry - f.depth,
+                                                    f.entry])]) * scale)
+        xr, yr = svgdraw.bounds(block, *holes, _finite(*lines.values()))
+        right = fig.panel(right_box, svgdraw.widen(xr, 0.05), svgdraw.widen(yr, 0.05),
+                          title="side view of the set-up, every hole at its index",
+                          xlabel=f"X along the crank axis from the inner face, {unit}",
+                          ylabel=f"Z from the crank axis (hole indexed up), {unit}")
+        fig.polygon(right, block, fill=WEB_FILL, stroke=svgdraw.INK, width=1.0, cls="outline")
+        for h in holes:
+            fig.path(right, h[:, 0], h[:, 1], stroke=svgdraw.MUTED, width=0.9, dash="1.5 2", cls="feature")
+        _draw_paths(fig, right, lines, plunges)
     else:
-        for ax in (left, right):
-            _outline(ax, prog, prog.face, scale)
-            _paths(ax, prog, moves, scale, legend=ax is right)
-        left.set_title("the whole face", fontsize=9)
-        right.set_title("the toolpaths, closer", fontsize=9)
-        feeds = np.array([p for mv in moves if not mv.rapid and all(map(math.isfinite, mv.start + mv.end))
-                          for p in mv.xy(0.05)]) * scale
+        xl, yl = svgdraw.bounds(*everything, _finite(*lines.values()))
+        xlabel = f"X on the {prog.face} face, {unit}" + (" (the web frame's x mirrored)"
+                                                          if prog.face == "inner" else "")
+        left = fig.panel(left_box, svgdraw.widen(xl, 0.04), svgdraw.widen(yl, 0.04), title="the whole face",
+                         xlabel=xlabel, ylabel=f"Y, {unit} (crankpin up)")
+        feeds = _finite(*(v for n, v in lines.items() if n is not None))
         if len(feeds):
             lo, hi = feeds.min(axis=0), feeds.max(axis=0)
             pad = 0.15 * max(hi - lo) + 6.0 * scale
-            right.set_xlim(lo[0] - pad, hi[0] + pad)
-            right.set_ylim(lo[1] - pad, hi[1] + pad)
-        for ax in (left, right):
-            ax.set_xlabel(f"X on the {prog.face} face, {unit}" + (" (the web frame's x mirrored)"
-                                                                   if prog.face == "inner" else ""))
-        left.set_ylabel(f"Y, {unit} (crankpin up)")
-        right.legend(fontsize=7, loc="best")
-    for ax in (left, right):
-        ax.set_aspect("equal", adjustable="box" if ax is right and prog.face != "rim" else "datalim")
-        ax.grid(True, lw=0.3, alpha=0.5)
-        ax.tick_params(labelsize=7)
-    fig.suptitle(f"{title}; about {minutes:.1f} min at the feeds and rapid rate (plus set-up and indexing); "
-                 "feeds solid, rapids dashed, + where a tool feeds straight down", fontsize=9)
-    fig.subplots_adjust(left=0.07, right=0.98, top=0.88, bottom=0.1, wspace=0.22)
+            xr, yr = (lo[0] - pad, hi[0] + pad), (lo[1] - pad, hi[1] + pad)
+        else:
+            xr, yr = left.xlim, left.ylim
+        right = fig.panel(right_box, xr, yr, title="the toolpaths, closer", xlabel=xlabel)
+        for panel in (left, right):
+            _draw_outline(fig, panel, loops, feats)
+            _draw_paths(fig, panel, lines, plunges)
+    entries = [("the web", {"fill": WEB_FILL, "stroke": svgdraw.INK}),
+               ("planned feature (numbered as on the sheet)", {"stroke": svgdraw.MUTED, "dash": "1.5 2"}),
+               ("rapid (G0)", {"stroke": RAPID, "width": 0.9, "dash": "5 3"})]
+    for k, (n, tool) in enumerate(sorted(prog.tools.items())):
+        entries.append((f"feed, {_tool_label(n, tool, prog.units)}",
+                        {"stroke": COLOURS[k % len(COLOURS)], "width": 1.4,
+                         "plus": bool(plunges[n])}))
+    legend_top = top + side + 48
+    fig.height = legend_top + fig.legend(left_box[0], legend_top, entries, width=WIDTH - left_box[0] - 30) + 12
     return fig
 
 
 def svg(prog, checked) -> bytes:
     """The back-plot as SVG bytes; the same program gives the same bytes."""
-    import matplotlib
-
-    fig = figure(prog, checked)
-    buf = io.BytesIO()
-    with matplotlib.rc_context({"svg.hashsalt": f"geomgen-{prog.name}", "svg.fonttype": "none"}):
-        fig.savefig(buf, format="svg", metadata={"Date": None})
-    return buf.getvalue()
+    return drawing(prog, checked).to_bytes()

@@ -66,9 +66,9 @@ def with_backplots(results) -> list:
 
 
 def _backplot(p, checked, request: dict | None = None) -> bytes:
-    """The back-plot's SVG: drawn by the plan's helper process when there is one (matplotlib is warm
-    there; the program and its simulated moves cross the pipe pickled, and the helper runs the very same
-    `backplot.svg`, so the bytes are the same), else here."""
+    """The back-plot's SVG: drawn by the plan's helper process when there is one (it draws while this
+    process writes the sheet and the drawing; the program and its simulated moves cross the pipe pickled,
+    and the helper runs the very same `backplot.svg`, so the bytes are the same), else here."""
     from .. import sidecar
 
     side = sidecar.active()
