@@ -18,7 +18,7 @@ VerificationFailed (4).  Error messages name the command-line option a value
 would come from (--unbalance, --angle, --web, --from).
 
 `import geomgen` stays light: the CAD kernel is imported by `Plan.verify`
-and by `inspect` of a STEP or STL file, matplotlib only to draw a picture.
+and by `inspect` of a STEP or STL file, pygal only to draw a chart.
 """
 
 from __future__ import annotations
@@ -178,7 +178,7 @@ class Plan:
         from .plan_json import jsonable
 
         works = self._works
-        # trimesh and matplotlib are imported in a second process while this one builds the solids
+        # trimesh is imported in a second process while this one builds the solids
         with sidecar.started() as side:
             if side is not None and self._study_dict is not None:
                 side.prefetch({"op": "svg", "study": self._study_dict})   # drawn there while the solids build

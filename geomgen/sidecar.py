@@ -120,7 +120,7 @@ class Sidecar:
         return self._answers.pop(line, None)
 
     def close(self) -> None:
-        """End of input: the helper leaves on its own.  Its exit (tearing down scipy and matplotlib)
+        """End of input: the helper leaves on its own.  Its exit (tearing down scipy)
         takes a few tenths of a second that the caller need not wait for; one that is still there after
         that is killed, so no helper outlives its work for long."""
         self._join_writer()

@@ -335,7 +335,7 @@ def render(result: dict) -> dict[str, bytes]:
     if answer is not None:
         svg = answer["svg"].encode("utf-8")
     else:
-        from .plots import study_svg  # matplotlib only when a picture is wanted
+        from .plots import study_svg  # the chart library only when a picture is wanted
 
         svg = study_svg(result)
     return {"study.json": text.encode("utf-8"), "study.svg": svg}

@@ -40,7 +40,7 @@ CONTRACT_FILES = {"plan.json", "web-a.step", "web-a.stl", "web-a.json", "web-b.s
 
 
 def test_import_geomgen_loads_no_cad_kernel_and_no_plotting():
-    # the design rule: the maths and the API's import load neither cadquery/OCP nor matplotlib
+    # the design rule: the maths and the API's import load neither cadquery/OCP nor a chart library
     script = ("import sys, geomgen\n"
               "heavy = [m for m in sys.modules if m.split('.')[0] in ('cadquery', 'OCP', 'matplotlib', 'pygal')]\n"
               "import geomgen.study, geomgen.inspect\n"

@@ -1,4 +1,4 @@
-"""The sidecar process (trimesh and matplotlib imported on the other core while the kernel works) is a
+"""The sidecar process (trimesh imported on the other core while the kernel works, the pictures drawn there) is a
 speed-up only: a plan verified with it writes the very bytes a plan verified in-process writes, and a
 helper that fails or cannot start leaves the work to the caller."""
 

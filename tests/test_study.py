@@ -183,7 +183,7 @@ def test_tilted_cylinder_study_rotates_the_cycle():
 
 def test_study_runs_without_cadquery(tmp_path):
     # the design rule: `geomgen study` must not import the CAD kernel, and
-    # balance/study import matplotlib only when a picture is drawn
+    # balance/study import the chart library only when a picture is drawn
     script = textwrap.dedent("""
         import sys
         class Block:

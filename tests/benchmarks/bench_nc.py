@@ -46,7 +46,7 @@ def report(repeat: int) -> dict:
         job = geomgen.load_job(SAMPLES / f"{name}.toml")
         plan = geomgen.plan(job)
         works = [w.work for w in plan.webs]
-        nc_programs(job=job, webs=works)                 # warm: pygcode, shapely, matplotlib imports
+        nc_programs(job=job, webs=works)                 # warm: pygcode and shapely imports
         t_plan = _median(lambda job=job: geomgen.plan(job).verify(), repeat)
         t_check = _median(lambda job=job, works=works: nc_programs(job=job, webs=works, draw=False), repeat)
         t_drawn = _median(lambda job=job, works=works: nc_programs(job=job, webs=works), repeat)
