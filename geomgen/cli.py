@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 from pathlib import Path
 
@@ -166,4 +167,20 @@ def main(argv=None) -> int:
         return 128 + 15
 
 
-__all__ = ["main", "build_parser", "BadInput"]
+def run() -> None:
+    """The console entry (`geomgen`, `python -m geomgen`): `main`, then leave at once with its exit code.
+
+    By then every file is written and closed and the helper process has its end of input.  What is
+    skipped is the interpreter's own tear-down of the CAD kernel's modules and objects, which takes
+    close to a second after a plan and changes nothing the user gets.  An exception `main` does not
+    map to an exit code propagates as usual, with its traceback."""
+    code = main()
+    try:
+        sys.stdout.flush()
+        sys.stderr.flush()
+    except (OSError, ValueError):   # a closed pipe (`geomgen plan ... | head`): nothing more to say
+        pass
+    os._exit(code)
+
+
+__all__ = ["main", "run", "build_parser", "BadInput"]
