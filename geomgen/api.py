@@ -132,7 +132,17 @@ class Plan:
         """The plan document at full precision (what the summary reads), from the prediction."""
         from .plan_json import plan_document
 
-        return plan_document(self.job, self.command, self._works, None, self._study_dict, self._trim_dict)
+        return plan_document(self.job, self.command, self._works, None, self._study_dict, self._trim_dict,
+                             found_band=self._band)
+
+    @cached_property
+    def _band(self) -> dict | None:
+        """The band on the balance factor (uncertainty.band), worked out once: it reads the prediction
+        only, so the document from the prediction and the verified one share it."""
+        from .plan_json import BAND_COMMANDS
+        from .uncertainty import band
+
+        return band(self.job, self._works) if self.command in BAND_COMMANDS else None
 
     @cached_property
     def document(self) -> dict:
@@ -185,6 +195,7 @@ class Plan:
             verified, files = solid_files(self.job, works)
             figures, rendered = render_files(self.job, self.command, works, verified,
                                              study_result=self._study_dict, trim=self._trim_dict,
+                                             found_band=self._band,
                                              with_shop=self.command != "build")
         document = jsonable(figures)
         files.update(rendered)

@@ -164,14 +164,15 @@ def solid_files(job, webs: list[WebWork]) -> tuple[list[dict], dict[str, bytes]]
 
 # ------------------------------------------------------------------ files
 def render_files(job, command: str, webs: list[WebWork], verified: list[dict], *, study_result: dict | None,
-                 trim: dict | None = None, with_shop: bool = True) -> tuple[dict, dict[str, bytes]]:
+                 trim: dict | None = None, with_shop: bool = True,
+                 found_band: dict | None = None) -> tuple[dict, dict[str, bytes]]:
     """(the plan document at full precision, {file name: bytes}) for plan.json, study.json/svg (with a
     study) and, with `with_shop`, operations.csv, drawing.dxf and report.html.  plan.json holds
     `jsonable(doc)`: the figures rounded as plan_json writes them; the sheets read `doc` itself."""
     from . import shop
     from .study import render as study_files
 
-    doc = plan_document(job, command, webs, verified, study_result, trim)
+    doc = plan_document(job, command, webs, verified, study_result, trim, found_band=found_band)
     files = {"plan.json": plan_json_bytes(jsonable(doc))}
     if study_result is not None:
         files.update(study_files(study_result))

@@ -11,6 +11,7 @@ a trim.  No CAD kernel.
 
 from __future__ import annotations
 
+import copy
 import json
 from pathlib import Path
 
@@ -85,13 +86,15 @@ def _outline_entry(spec):
 
 
 def plan_document(job, command: str, webs: list, verified: list[dict] | None, study_result: dict | None,
-                  trim: dict | None = None) -> dict:
+                  trim: dict | None = None, *, found_band: dict | None = None) -> dict:
     """The plan.json dict of one run.
 
     command : "plan" | "build" | "trim";  webs : the pipeline's WebWork list;  verified : one
     verification dict per web (pipeline.build_and_verify), or None for the prediction alone (the
     crank figures then use the predicted properties);  study_result : the study, or None (build);
-    trim : the trim record (measured_gmm, reading_deg, crank_frame_deg, reading_direction, from, web).
+    trim : the trim record (measured_gmm, reading_deg, crank_frame_deg, reading_direction, from, web);
+    found_band : `uncertainty.band(job, webs)` when already worked out (it reads the prediction only, so
+    the document before and after verification share it), else worked out here.
     """
     e = job.engine
     exact = [v["exact_massprops"] for v in verified] if verified else [w.plan.predicted for w in webs]
@@ -173,7 +176,7 @@ def plan_document(job, command: str, webs: list, verified: list[dict] | None, st
     if command in BAND_COMMANDS:
         # how sure the balance factor is (geomgen.uncertainty): the contract's two keys at the top, the rest
         # beside them
-        found = band(job, webs)
+        found = copy.deepcopy(found_band) if found_band is not None else band(job, webs)
         doc["balance_factor_band"] = found.pop("balance_factor_band")
         doc["contributions"] = found.pop("contributions")
         doc["uncertainty"] = found

@@ -3,10 +3,12 @@
 A fresh Python process that imports cadquery and does by hand the kernel work
 geomgen does for a web: the body extruded with its pin bore, ONE multi-tool
 cut of the holes (a cylinder each, with a cone for a drill point), a STEP and
-a binary STL export for each named web, one GProp evaluation, then it leaves
-with os._exit as geomgen's command line does (neither pays the interpreter's
-tear-down of the kernel, close to a second).  Nothing of geomgen is imported,
-so the ratio geomgen / floor is what geomgen adds.
+a binary STL export for each named web, one GProp evaluation.  Nothing of
+geomgen is imported, so the ratio geomgen / floor is what geomgen adds.
+
+Two ways to leave: as a plain script does (the interpreter tears the kernel's
+modules down, most of a second), or at once with os._exit, as geomgen's command
+line leaves (`floor(spec, leave_at_once=True)`, the stricter reference).
 
 spec (JSON): {"thickness", "radius" (web), "pin_y", "pin_radius" (mm),
 "holes": [{"x", "y", "diameter", "depth", "point_angle"?, "through"?}],
@@ -58,7 +60,8 @@ t4 = time.perf_counter()
 import shutil
 shutil.rmtree(out)
 print(json.dumps({"import": t1 - t0, "build": t2 - t1, "export": t3 - t2, "props": t4 - t3}), flush=True)
-os._exit(0)   # as geomgen's command line leaves: without the interpreter's tear-down of the kernel
+if sys.argv[2:] == ["at-once"]:
+    os._exit(0)   # as geomgen's command line leaves: without the interpreter's tear-down of the kernel
 """
 
 
@@ -71,6 +74,6 @@ def run_script(code: str, *args: str) -> dict:
     return inner
 
 
-def floor(spec: dict) -> dict:
+def floor(spec: dict, *, leave_at_once: bool = False) -> dict:
     """Phase times and wall time (s) of the floor for `spec` (see the module notes)."""
-    return run_script(SCRIPT, json.dumps(spec))
+    return run_script(SCRIPT, json.dumps(spec), *(["at-once"] if leave_at_once else []))
