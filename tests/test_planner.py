@@ -294,8 +294,8 @@ def _check_plan_analytically(e, plan):
 
 
 # planning one engine takes about a third of a second: CI (which sets CI) tries 25 engines, a developer's
-# quick `pytest -m "not cad"` 8; hypothesis keeps any engine that ever failed in its database and tries it first
-ENGINES = 25 if os.environ.get("CI") else 8
+# quick `pytest -m "not cad"` 5; hypothesis keeps any engine that ever failed in its database and tries it first
+ENGINES = 25 if os.environ.get("CI") else 5
 
 
 # no shrinking: an engine takes a third of a second to plan, and shrinking a failure would run for many
