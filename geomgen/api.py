@@ -183,20 +183,30 @@ class Plan:
         Raises VerificationFailed if a solid and its prediction are apart, BadInput if a feature
         breaks a wall the solid checks.
         """
-        from . import sidecar
+        from . import kernel_child, sidecar
         from .pipeline import render_files, solid_files
         from .plan_json import jsonable
 
         works = self._works
-        # trimesh is imported in a second process while this one builds the solids
-        with sidecar.started() as side:
-            if side is not None and self._study_dict is not None:
-                side.prefetch({"op": "svg", "study": self._study_dict})   # drawn there while the solids build
-            verified, files = solid_files(self.job, works)
+        # the command line's child process has loaded the kernel while this one planned: it builds the
+        # solids; the pictures are then drawn here (tenths of a second, no helper needed)
+        child = kernel_child.take()
+        done = child.solid_files(self.job, works, meanwhile=self._get_ready) if child is not None else None
+        if done is not None:
+            verified, files = done
             figures, rendered = render_files(self.job, self.command, works, verified,
                                              study_result=self._study_dict, trim=self._trim_dict,
-                                             found_band=self._band,
-                                             with_shop=self.command != "build")
+                                             found_band=self._band, with_shop=self.command != "build")
+        else:
+            # trimesh is imported in a second process while this one builds the solids
+            with sidecar.started() as side:
+                if side is not None and self._study_dict is not None:
+                    side.prefetch({"op": "svg", "study": self._study_dict})   # drawn there meanwhile
+                verified, files = solid_files(self.job, works)
+                figures, rendered = render_files(self.job, self.command, works, verified,
+                                                 study_result=self._study_dict, trim=self._trim_dict,
+                                                 found_band=self._band,
+                                                 with_shop=self.command != "build")
         document = jsonable(figures)
         files.update(rendered)
         webs = tuple(VerifiedWeb(name=w.name, predicted=w.predicted, exact=v["exact_massprops"],
@@ -205,6 +215,20 @@ class Plan:
                      for w, v in zip(self.webs, verified))
         return Verified(plan=self, webs=webs, document=document, figures=figures,
                         files=MappingProxyType(dict(sorted(files.items()))), warnings=tuple(document["warnings"]))
+
+    def _get_ready(self) -> None:
+        """What the files need besides the solids, done while the command line's child builds them: the
+        drawing's library loaded, the study and band charts drawn (plots remembers them)."""
+        import ezdxf  # noqa: F401
+
+        from . import plots
+
+        if self._study_dict is not None:
+            plots.study_svg(self._study_dict)
+        if self.command != "build" and "balance_factor_band" in self.figures:
+            from .band_report import band_figure_svg
+
+            band_figure_svg(self.figures)
 
     @property
     def _works(self) -> list:

@@ -127,7 +127,11 @@ def _cmd_trim(args) -> int:
 
 def _load(args):
     """The job, its warnings printed at once (before the long part of the work)."""
+    from . import kernel_child
+
     job = api.load_job(args.job)
+    if any(getattr(w, "model", None) for w in job.webs):
+        kernel_child.release()        # a 3D model web is planned with the kernel in this process
     warn_all(job.warnings)
     return job
 
@@ -167,6 +171,10 @@ def main(argv=None) -> int:
         return 128 + 15
 
 
+#: the commands whose solids the console entry's child process builds (geomgen.kernel_child)
+KERNEL_COMMANDS = ("plan", "build", "trim")
+
+
 def run() -> None:
     """The console entry (`geomgen`, `python -m geomgen`): `main`, then leave at once with its exit code.
 
@@ -174,7 +182,14 @@ def run() -> None:
     skipped is the interpreter's own tear-down of the CAD kernel's modules and objects, which takes
     close to a second after a plan and changes nothing the user gets.  An exception `main` does not
     map to an exit code propagates as usual, with its traceback."""
-    code = main()
+    from . import kernel_child
+
+    if len(sys.argv) > 1 and sys.argv[1] in KERNEL_COMMANDS:
+        kernel_child.start()          # the kernel loads in a child process while this one plans
+    try:
+        code = main()
+    finally:
+        kernel_child.release()
     try:
         sys.stdout.flush()
         sys.stderr.flush()

@@ -72,6 +72,28 @@ def _nice_limit(value: float) -> float:
                 if k * power >= value * (1 - 1e-12))
 
 
+#: charts already drawn in this process, by the JSON of what they were drawn from: a plan whose solids
+#: are built by the command line's child process draws its charts while it waits (`warm_up`), and the
+#: report then finds them here
+_DRAWN: dict[str, bytes] = {}
+
+
+def _remembered(draw):
+    """`draw` (a chart function of JSON-able arguments) answering again from `_DRAWN`."""
+    import functools
+    import json
+
+    @functools.wraps(draw)
+    def wrapper(*args, **kwargs):
+        key = json.dumps([draw.__name__, args, kwargs], sort_keys=True)
+        if key not in _DRAWN:
+            _DRAWN[key] = draw(*args, **kwargs)
+        return _DRAWN[key]
+
+    return wrapper
+
+
+@_remembered
 def study_svg(result: dict) -> bytes:
     """The study picture as SVG bytes: the force's locus in the crank frame beside the balance-factor
     sweep.  The same result gives the same bytes."""
@@ -135,6 +157,7 @@ def study_svg(result: dict) -> bytes:
                                        (580, 36, bf_chart.render(is_unicode=True))])
 
 
+@_remembered
 def band_svg(band: dict, contributions: list[dict], *, tolerance_points: float, title: str = "") -> bytes:
     """How sure the balance factor is, as SVG bytes: the Monte Carlo histogram of the balance factor (with
     the first-order normal curve, the asked value and its tolerance) beside the inputs that move it, in

@@ -155,6 +155,25 @@ def started():
             side.close()
 
 
+def start_helper() -> Sidecar | None:
+    """Start a helper and make it the active one for the rest of this process (geomgen.kernel_child's
+    child, which owns it for its whole short life); None if it cannot be started."""
+    global _ACTIVE
+    try:
+        _ACTIVE = Sidecar()
+    except OSError:
+        _ACTIVE = None
+    return _ACTIVE
+
+
+def stop_helper(side: Sidecar | None) -> None:
+    """The end of `start_helper`'s helper."""
+    global _ACTIVE
+    _ACTIVE = None
+    if side is not None:
+        side.close()
+
+
 def active() -> Sidecar | None:
     return _ACTIVE
 
@@ -173,7 +192,13 @@ def _serve() -> None:
     """The helper's side: warm the imports, then answer each request line.  trimesh (scipy under it,
     about a second) is imported by a thread while the loop already answers: a chart asked for first is
     drawn at once, and the first mesh request waits on the import's module lock until trimesh is in."""
+    import os
     import threading
+
+    # the caller's kernel import (or its child's) is the long pole of a plan: this helper takes what CPU
+    # is left over, and still has its answers ready long before they are asked for
+    with suppress(OSError):
+        os.nice(10)
 
     def warm_mesh() -> None:
         import trimesh  # noqa: F401  (the point: imported while the caller works)
