@@ -74,8 +74,9 @@ def _nice_limit(value: float) -> float:
 
 #: charts already drawn in this process, by the JSON of what they were drawn from: a plan whose solids
 #: are built by the command line's child process draws its charts while it waits (`warm_up`), and the
-#: report then finds them here
+#: report then finds them here (the last few only: a long notebook session does not keep every chart)
 _DRAWN: dict[str, bytes] = {}
+_KEEP = 8
 
 
 def _remembered(draw):
@@ -87,6 +88,8 @@ def _remembered(draw):
     def wrapper(*args, **kwargs):
         key = json.dumps([draw.__name__, args, kwargs], sort_keys=True)
         if key not in _DRAWN:
+            while len(_DRAWN) >= _KEEP:
+                del _DRAWN[next(iter(_DRAWN))]       # the oldest first
             _DRAWN[key] = draw(*args, **kwargs)
         return _DRAWN[key]
 

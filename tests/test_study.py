@@ -247,3 +247,16 @@ def test_the_locus_axes_share_one_range_so_a_circle_stays_round(demo):
     text = study_mod.render(demo)["study.svg"].decode("utf-8")
     lim = _nice_limit(demo["peak_N"] * 1.08)
     assert f">{-lim:g}<" in text.replace("\u2212", "-") or f">{int(-lim)}<" in text.replace("\u2212", "-")
+
+
+def test_a_chart_drawn_again_is_the_one_remembered_and_only_the_last_few_are_kept(demo):
+    from geomgen import plots
+
+    plots._DRAWN.clear()
+    first = plots.study_svg(demo)
+    assert plots.study_svg(demo) is first                       # the same bytes object: not drawn again
+    for k in range(plots._KEEP + 2):                             # other results push it out, oldest first
+        plots.study_svg(dict(demo, name=f"other {k}"))
+    assert len(plots._DRAWN) == plots._KEEP
+    again = plots.study_svg(demo)
+    assert again == first and again is not first                 # drawn anew, to the same bytes
