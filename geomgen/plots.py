@@ -41,6 +41,16 @@ def _chart(kind: str, chart_id: str, colours: list[str], *, width: int, height: 
     return chart
 
 
+def _render(chart, columns: int) -> str:
+    """The chart's SVG, with room for every row of its bottom legend: pygal reserves (series // columns)
+    rows where ceil(titled series / columns) are drawn, so an odd count lost its last row."""
+    titled = sum(1 for s in chart.raw_series if s[1].get("title"))
+    missing = math.ceil(titled / columns) - len(chart.raw_series) // columns
+    if missing > 0:
+        chart.margin_bottom = 14 + 20 * missing
+    return chart.render(is_unicode=True)
+
+
 def _clean(svg: str) -> str:
     """pygal's SVG without its comments (they carry today's date) and its scripts (for a library not shipped)."""
     svg = re.sub(r"<!--.*?-->", "", svg, flags=re.S)
@@ -156,8 +166,7 @@ def study_svg(result: dict) -> bytes:
                  [(inp["balance_factor"], 0.0), (inp["balance_factor"], top)], stroke_style={"width": 1.2})
     bf_chart.add(f"smallest peak: BF {best:g}, {best_peak:.0f} N", [(best, best_peak)], stroke=False,
                  show_dots=True, dots_size=6)
-    return _compose(1250, 650, title, [(10, 36, locus.render(is_unicode=True)),
-                                       (580, 36, bf_chart.render(is_unicode=True))])
+    return _compose(1250, 650, title, [(10, 36, _render(locus, 2)), (580, 36, _render(bf_chart, 2))])
 
 
 @_remembered
@@ -224,7 +233,7 @@ def band_svg(band: dict, contributions: list[dict], *, tolerance_points: float, 
         labels.append(f"{name}, ±{r['bf_points']:.2f}")
     bars.x_labels = labels
     bars.add("± balance-factor points", entries)
-    return _compose(1230, 610 if title else 590, title, [(10, 40 if title else 20, hist.render(is_unicode=True)),
+    return _compose(1230, 610 if title else 590, title, [(10, 40 if title else 20, _render(hist, 2)),
                                                         (660, 40 if title else 20, bars.render(is_unicode=True))])
 
 

@@ -260,3 +260,18 @@ def test_a_chart_drawn_again_is_the_one_remembered_and_only_the_last_few_are_kep
     assert len(plots._DRAWN) == plots._KEEP
     again = plots.study_svg(demo)
     assert again == first and again is not first                 # drawn anew, to the same bytes
+
+
+@pytest.mark.parametrize("balancer", [True, False])
+def test_every_legend_row_of_the_charts_lies_inside_its_chart(balancer):
+    # without a balancer the sweep has five legend entries in two columns: three rows, where the chart
+    # library reserves room for two; each legend box (12 px) must end above its chart's own height
+    import re
+
+    result = study_mod.study(engine=FakeEngine(), balancer=FakeBalancer() if balancer else None, name="demo")
+    text = study_mod.render(result)["study.svg"].decode("utf-8")
+    for chart in re.split(r'(?=<svg x=")', text)[1:]:
+        height = float(re.search(r'height="([0-9.]+)"', chart).group(1))
+        dy = float(re.search(r'transform="translate\([0-9.]+, ([0-9.]+)\)" class="legends"', chart).group(1))
+        boxes = [float(y) for y in re.findall(r'<rect x="[0-9.]+" y="([0-9.]+)" width="12" height="12"', chart)]
+        assert boxes and dy + max(boxes) + 12 <= height, (dy, max(boxes), height)
