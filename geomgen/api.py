@@ -218,17 +218,22 @@ class Plan:
 
     def _get_ready(self) -> None:
         """What the files need besides the solids, done while the command line's child builds them: the
-        drawing's library loaded, the study and band charts drawn (plots remembers them)."""
+        drawing's library loaded, the study and band charts drawn (plots remembers them), the NC programs
+        written, checked and drawn (nc.run keeps them for the shop files)."""
         import ezdxf  # noqa: F401
 
         from . import plots
 
         if self._study_dict is not None:
             plots.study_svg(self._study_dict)
-        if self.command != "build" and "balance_factor_band" in self.figures:
-            from .band_report import band_figure_svg
+        if self.command != "build":
+            if "balance_factor_band" in self.figures:
+                from .band_report import band_figure_svg
 
-            band_figure_svg(self.figures)
+                band_figure_svg(self.figures)
+            from .nc.run import prepare
+
+            prepare(job=self.job, webs=self._works)
 
     @property
     def _works(self) -> list:

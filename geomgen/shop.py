@@ -35,14 +35,16 @@ def render(*, job, doc: dict, webs, study: dict | None = None, study_svg: bytes 
         side.prefetch(band_request(doc))    # the helper draws it while this process goes on
     # the NC programs of the new work, each read back, simulated and checked (exit 4 if one disagrees)
     nc = nc_programs(job=job, webs=webs, draw=False)
-    if side is not None:
+    drawn = all(r.backplot_svg for r in nc.programs)     # ready, drawn, when the plan prepared them
+    if side is not None and not drawn:
         for request in backplot_requests(nc.programs):
             side.prefetch(request)
     sheet = operations_csv(job=job, doc=doc, webs=webs)
     drawing = drawing_dxf(job=job, doc=doc, webs=webs)
-    import dataclasses
+    if not drawn:
+        import dataclasses
 
-    nc = dataclasses.replace(nc, programs=tuple(with_backplots(nc.programs)))
+        nc = dataclasses.replace(nc, programs=tuple(with_backplots(nc.programs)))
     return {
         "operations.csv": sheet,
         "drawing.dxf": drawing,

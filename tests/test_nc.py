@@ -443,3 +443,24 @@ def test_readme_machining_block_is_the_defaults():
     data = tomllib.loads(block)
     assert read_machining(data["machining"]) == Machining(end_mills=METRIC_END_MILLS)
     assert Machining().end_mill_sizes("metric") == METRIC_END_MILLS
+
+
+def test_programs_prepared_ahead_are_the_ones_the_shop_files_get():
+    # a plan whose solids another process builds works out and draws its programs while it waits
+    # (nc.run.prepare); the shop files then take those very objects, once, and only for the same plan
+    import geomgen
+    from geomgen.nc import run as ncrun
+
+    plan = geomgen.plan("samples/heavier-piston.toml")
+    works = [w.work for w in plan.webs]
+    ncrun.prepare(job=plan.job, webs=works)
+    ready = ncrun._READY[0][2]
+    assert ready.programs and all(b"<svg" in r.backplot_svg[:300] for r in ready.programs)   # drawn
+    assert ncrun.nc_programs(job=plan.job, webs=works, draw=False) is ready
+    again = ncrun.nc_programs(job=plan.job, webs=works, draw=False)       # used up: worked out anew
+    assert again is not ready and again.files == ready.files and all(not r.backplot_svg for r in again.programs)
+    ncrun.prepare(job=plan.job, webs=works)
+    second = ncrun._READY[0][2]
+    other = geomgen.plan("samples/heavier-piston.toml")                    # an equal plan, not the same one
+    assert ncrun.nc_programs(job=other.job, webs=[w.work for w in other.webs], draw=False) is not second
+    assert ncrun._READY == []

@@ -25,9 +25,25 @@ class NCResult:
     notes: tuple = ()
 
 
+#: programs worked out ahead for one (job, webs), drawn (`prepare`): a plan whose solids the command line's
+#: child builds gets its programs ready while it waits, and `shop.render` takes them from here
+_READY: list = []
+
+
+def prepare(*, job, webs) -> None:
+    """Work out and draw the programs of (job, webs) now; the next `nc_programs` of the very same objects
+    answers with them (once)."""
+    _READY[:] = [(job, list(webs), nc_programs(job=job, webs=webs, draw=True))]
+
+
 def nc_programs(*, job, webs, draw: bool = True) -> NCResult:
     """Write, read back, simulate and check every program of the plan's new work (VerificationFailed, exit 4,
     if one disagrees with the plan); with `draw`, its back-plot too."""
+    if _READY:
+        (ready_job, ready_webs, ready), = _READY
+        _READY.clear()
+        if ready_job is job and len(ready_webs) == len(webs) and all(a is b for a, b in zip(ready_webs, webs)):
+            return ready
     from .check import check
     from .program import programs
 
