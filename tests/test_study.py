@@ -249,10 +249,11 @@ def test_the_locus_axes_share_one_range_so_a_circle_stays_round(demo):
     assert f">{-lim:g}<" in text.replace("\u2212", "-") or f">{int(-lim)}<" in text.replace("\u2212", "-")
 
 
-def test_a_chart_drawn_again_is_the_one_remembered_and_only_the_last_few_are_kept(demo):
+def test_a_chart_drawn_again_is_the_one_remembered_and_only_the_last_few_are_kept(demo, monkeypatch):
     from geomgen import plots
 
-    plots._DRAWN.clear()
+    monkeypatch.setattr(plots, "_KEEP", 3)
+    monkeypatch.setattr(plots, "_DRAWN", {})
     first = plots.study_svg(demo)
     assert plots.study_svg(demo) is first                       # the same bytes object: not drawn again
     for k in range(plots._KEEP + 2):                             # other results push it out, oldest first
