@@ -98,3 +98,25 @@ def test_a_model_web_is_planned_and_built_in_the_parent(tmp_path):
     assert done.returncode == 0, done.stderr
     assert "parent loaded the kernel: True" in done.stderr
     assert (tmp_path / "out" / "web-a.step").stat().st_size > 0
+
+
+@pytest.mark.cad
+def test_when_the_child_fails_the_parent_does_the_work_itself(tmp_path):
+    # the child's solid_files is made to fail (as a wall the solid check refuses would); the parent then
+    # builds the solids itself (so it loads the kernel) and the plan is whole
+    entry = _ENTRY.replace(
+        "from geomgen.cli import run\n",
+        "import geomgen.pipeline as pl\n"
+        "parent = os.getpid()\n"
+        "real = pl.solid_files\n"
+        "def failing(*a, **k):\n"
+        "    if os.getpid() != parent:\n"
+        "        raise RuntimeError('the child fails here, for the test')\n"
+        "    return real(*a, **k)\n"
+        "pl.solid_files = failing\n"
+        "from geomgen.cli import run\n")
+    done = subprocess.run([sys.executable, "-c", entry, "plan", SAMPLES / "heavier-piston.toml", "--out",
+                           tmp_path / "out"], capture_output=True, text=True, cwd=ROOT, timeout=600)
+    assert done.returncode == 0, done.stderr
+    assert "parent loaded the kernel: True" in done.stderr
+    assert len(list((tmp_path / "out").iterdir())) == 15          # the README's sample: 15 files
