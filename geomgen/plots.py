@@ -51,6 +51,18 @@ def _render(chart, columns: int) -> str:
     return chart.render(is_unicode=True)
 
 
+def _square(chart, columns: int = 2) -> str:
+    """`_render`ed with a square plot area: pygal sizes the plot from the chart's size less its labels and
+    legend, so the chart is drawn once, its height changed by what the plot's width and height differ,
+    and drawn again (the same pixels per unit on both axes of an XY chart with one range for both)."""
+    svg = _render(chart, columns)
+    found = re.search(r'class="plot"><rect x="0" y="0" width="([0-9.]+)" height="([0-9.]+)"', svg)
+    if found:
+        chart.height = round(chart.config.height + float(found.group(1)) - float(found.group(2)))
+        svg = _render(chart, columns)
+    return svg
+
+
 def _clean(svg: str) -> str:
     """pygal's SVG without its comments (they carry today's date) and its scripts (for a library not shipped)."""
     svg = re.sub(r"<!--.*?-->", "", svg, flags=re.S)
@@ -166,7 +178,7 @@ def study_svg(result: dict) -> bytes:
                  [(inp["balance_factor"], 0.0), (inp["balance_factor"], top)], stroke_style={"width": 1.2})
     bf_chart.add(f"smallest peak: BF {best:g}, {best_peak:.0f} N", [(best, best_peak)], stroke=False,
                  show_dots=True, dots_size=6)
-    return _compose(1250, 650, title, [(10, 36, _render(locus, 2)), (580, 36, _render(bf_chart, 2))])
+    return _compose(1250, 650, title, [(10, 36, _square(locus)), (580, 36, _render(bf_chart, 2))])
 
 
 @_remembered

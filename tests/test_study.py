@@ -238,7 +238,10 @@ def test_the_chart_is_the_same_on_any_day_and_fetches_nothing(demo_files):
 
 def test_the_locus_axes_share_one_range_so_a_circle_stays_round(demo):
     # the left panel is the crank frame: x and y get the same limits, the round number just above the
-    # largest force times 1.08 (the 1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6, 8 series: common practice for axis limits)
+    # largest force times 1.08 (the 1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6, 8 series: common practice for axis
+    # limits), and the same pixels per newton both ways (read off the tick labels' positions)
+    import re
+
     from geomgen.plots import _nice_limit
 
     assert _nice_limit(4777.0 * 1.08) == 6000.0
@@ -246,7 +249,17 @@ def test_the_locus_axes_share_one_range_so_a_circle_stays_round(demo):
     assert _nice_limit(2.0) == 2.0
     text = study_mod.render(demo)["study.svg"].decode("utf-8")
     lim = _nice_limit(demo["peak_N"] * 1.08)
-    assert f">{-lim:g}<" in text.replace("\u2212", "-") or f">{int(-lim)}<" in text.replace("\u2212", "-")
+    locus = text[text.index("chart-geomgen-study-locus"):text.index("chart-geomgen-study-sweep")]
+    x_axis = locus[locus.index('class="axis x'):]
+    y_axis = locus[locus.index('class="axis y'):locus.index('class="axis x')]
+    xs = [(float(v), float(p)) for p, v in re.findall(r'<text x="([0-9.]+)" y="[0-9.]+"[^>]*>(-?[0-9.]+)</text>',
+                                                       x_axis)]
+    ys = [(float(v), float(p)) for p, v in re.findall(r'<text x="-?[0-9.]+" y="([0-9.]+)"[^>]*>(-?[0-9.]+)</text>',
+                                                       y_axis)]
+    assert (xs[0][0], xs[-1][0]) == (-lim, lim) and (ys[0][0], ys[-1][0]) == (-lim, lim)
+    px_x = (xs[-1][1] - xs[0][1]) / (2 * lim)
+    px_y = (ys[0][1] - ys[-1][1]) / (2 * lim)          # SVG y grows downwards
+    assert px_x == pytest.approx(px_y, rel=0.01)
 
 
 def test_a_chart_drawn_again_is_the_one_remembered_and_only_the_last_few_are_kept(demo, monkeypatch):
