@@ -1,6 +1,6 @@
 """STEP and STL files of web solids, and reading STEP back with its names.
 
-OpenCascade (OCP), cadquery and trimesh are imported inside the functions.
+OpenCascade (OCP, through geomgen.occ) and trimesh are imported inside the functions.
 Every writer takes a folder or path it is given and writes only there (the
 command line writes into a temporary folder and moves it into place).
 
@@ -72,9 +72,6 @@ class _StepSettings:
         return False
 
 
-def _shape(obj):
-    return obj.wrapped if hasattr(obj, "wrapped") else obj
-
 
 #: FILE_NAME author and organization: geomgen does not know the person or the shop,
 #: and an empty string is what ISO 10303-21 writes for a value not given
@@ -90,9 +87,11 @@ def _standalone(shapes):
     from OCP.BRepBuilderAPI import BRepBuilderAPI_Copy, BRepBuilderAPI_Transform
     from OCP.TopLoc import TopLoc_Location
 
+    from . import occ
+
     seen, out = [], []
     for shape in shapes:
-        raw = _shape(shape)
+        raw = occ.raw(shape)
         if not raw.Location().IsIdentity():
             trsf = raw.Location().Transformation()
             bare = raw.Located(TopLoc_Location())
@@ -164,7 +163,7 @@ def write_step(solids, path, *, description: str | None = None) -> Path:
     """Write named solids to one STEP file.
 
     solids : sequence of (name, shape) or (name, shape, density g/cm^3) or (name, shape, density, material
-             name or None) (shape a cadquery Shape or TopoDS_Shape), in the order wanted in the file (body
+             name or None) (shape a TopoDS_Shape or a wrapper of one), in the order wanted in the file (body
              first); each becomes its own product, at the place its shape says, and a density becomes the
              product's description (`density_description`)
     path : the file to write
@@ -177,6 +176,8 @@ def write_step(solids, path, *, description: str | None = None) -> Path:
     from OCP.TDataStd import TDataStd_Name
     from OCP.TDocStd import TDocStd_Document
     from OCP.XCAFDoc import XCAFDoc_DocumentTool
+
+    from . import occ  # noqa: F401  (the kernel, its messages kept off standard output)
 
     solids = [tuple(s) for s in solids]
     products = {str(s[0]): density_description(s[2], s[3] if len(s) > 3 else None)
@@ -212,6 +213,7 @@ def step_header(path) -> dict:
     from OCP.IFSelect import IFSelect_RetDone
     from OCP.STEPControl import STEPControl_Reader
 
+    from . import occ  # noqa: F401  (the kernel, its messages kept off standard output)
     from .errors import BadInput
 
     reader = STEPControl_Reader()
@@ -236,6 +238,7 @@ def step_product_descriptions(path) -> dict[str, str]:
     from OCP.StepBasic import StepBasic_Product
     from OCP.STEPControl import STEPControl_Reader
 
+    from . import occ  # noqa: F401  (the kernel, its messages kept off standard output)
     from .errors import BadInput
 
     reader = STEPControl_Reader()
@@ -262,6 +265,7 @@ def read_step(path) -> list[tuple[str, object]]:
     from OCP.TDocStd import TDocStd_Document
     from OCP.XCAFDoc import XCAFDoc_DocumentTool
 
+    from . import occ  # noqa: F401  (the kernel, its messages kept off standard output)
     from .errors import BadInput
 
     doc = TDocStd_Document(TCollection_ExtendedString("XmlOcaf"))
@@ -286,11 +290,13 @@ def _compound(shapes):
     from OCP.BRep import BRep_Builder
     from OCP.TopoDS import TopoDS_Compound
 
+    from . import occ
+
     comp = TopoDS_Compound()
     builder = BRep_Builder()
     builder.MakeCompound(comp)
     for s in shapes:
-        builder.Add(comp, _shape(s))
+        builder.Add(comp, occ.raw(s))
     return comp
 
 

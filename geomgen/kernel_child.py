@@ -1,6 +1,6 @@
 """The CAD kernel loaded while the plan is worked out: a child process forked when the command line starts.
 
-Importing the kernel (cadquery, OpenCascade) takes two to three seconds on one core and cannot run in a
+Importing the kernel (OpenCascade, through geomgen.occ) takes one and a half seconds on one core and cannot run in a
 thread beside the planning (the import holds the interpreter's lock).  So `cli.run`, for `plan`, `build`
 and `trim`, forks this child first.  The child starts its own helper process for the mesh check
 (geomgen.sidecar), imports the kernel, then waits.  Meanwhile the parent reads the job, plans and works out
@@ -111,12 +111,13 @@ def _child(req_r: int, ans_w: int) -> None:
 
         side = sidecar.start_helper()        # its trimesh import runs while the kernel loads here
         try:
-            import cadquery  # noqa: F401  (the point: loaded while the parent plans)
+            # the point: the kernel and the modules that build, export and verify, loaded while the parent plans
+            from . import export, occ, solid, verify  # noqa: F401
+            from .pipeline import solid_files
 
             request = _read_all(req_r)
             if not request:                  # the parent refused the job or is gone
                 return
-            from .pipeline import solid_files
 
             job, works = pickle.loads(request)
             verified, files = solid_files(job, works)

@@ -159,6 +159,8 @@ def _read(path: Path, *, units, rotate_deg, stroke, pin_bore, main_bore, where) 
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
 
+    from . import occ  # noqa: F401  (the kernel, its messages kept off standard output)
+
     key = f"{where}.model"
     try:
         text = path.read_text(encoding="latin-1")
@@ -569,34 +571,22 @@ def _volume(shape) -> MassProps | None:
 
 def _placed(shape, z0: float):
     """A tool or filler made for a column from 0 moved up to the column's bottom."""
-    raw = shape.wrapped if hasattr(shape, "wrapped") else shape
-    if not z0:
-        return raw
-    from OCP.BRepBuilderAPI import BRepBuilderAPI_Transform
-    from OCP.gp import gp_Trsf, gp_Vec
+    from . import occ
 
-    t = gp_Trsf()
-    t.SetTranslation(gp_Vec(0, 0, z0))
-    return BRepBuilderAPI_Transform(raw, t, True).Shape()
+    return occ.translated(shape, (0.0, 0.0, z0)) if z0 else occ.raw(shape)
 
 
 def placed_tool(section, feature):
-    """The feature's cutting tool in the web frame of its section (a cadquery Shape)."""
-    import cadquery as cq
-
+    """The feature's cutting tool in the web frame of its section (an OpenCascade shape)."""
     z0, z1 = section_column(section, feature)
-    tool = feature.tool(z1 - z0)
-    return tool if not z0 else cq.Shape.cast(_placed(tool, z0))
+    return _placed(feature.tool(z1 - z0), z0)
 
 
 def placed_filler(section, feature):
-    import cadquery as cq
-
+    """The solid that fills the feature's cut (a plug) in the web frame of its section, or None."""
     z0, z1 = section_column(section, feature)
     filler = feature.filler(z1 - z0)
-    if filler is None or not z0:
-        return filler
-    return cq.Solid(_placed(filler, z0))
+    return None if filler is None else _placed(filler, z0)
 
 
 def section_column(section, feature) -> tuple[float, float]:
@@ -699,7 +689,7 @@ def _model_walls(section, features, *, name, min_wall, pin_wall, existing) -> Mo
     need_all = max(float(min_wall), MIN_SOLID_WALL_MM)
     enough = 2.0 * max(need_all, float(pin_wall))
     faces = _face_names(section)
-    tools = [_shape_of(placed_tool(section, f)) for f in features]
+    tools = [placed_tool(section, f) for f in features]
     walls, short = [], []
 
     def judge(i, f, to, wall, pin):
@@ -730,7 +720,3 @@ def _model_walls(section, features, *, name, min_wall, pin_wall, existing) -> Mo
         for j in range(i):
             judge(i, f, f"feature {j + 1} ({features[j].kind})", _distance(tool, tools[j], enough), False)
     return ModelWalls(tuple(walls), tuple(short))
-
-
-def _shape_of(obj):
-    return obj.wrapped if hasattr(obj, "wrapped") else obj

@@ -1,6 +1,6 @@
 """Web solids: the outline extruded with its bores, the features cut in one go.
 
-The CAD kernel (cadquery / OpenCascade) is imported lazily inside the
+The CAD kernel (OpenCascade, through geomgen.occ) is imported lazily inside the
 functions that build shapes, so importing this module costs nothing; the
 feature check (`check_features`, geomgen.walls) is plain shapely and never
 touches it.
@@ -26,7 +26,6 @@ from dataclasses import dataclass, field
 from .errors import BadInput, VerificationFailed
 from .walls import MIN_SOLID_WALL_MM, WallShortfall, measure_walls  # noqa: F401  (MIN_SOLID_WALL_MM: public)
 
-#: how far a tool reaches past the face it enters, mm (avoids coplanar faces)
 #: relative volume agreement demanded of a clean()ed shape (clean() can corrupt a
 #: solid that still reports itself valid)
 _CLEAN_REL = 1e-9
@@ -46,7 +45,7 @@ class PlugSolid:
 class WebSolid:
     """A web as solids in its own frame.
 
-    body : cadquery Solid, the web material with every feature cut
+    body : OpenCascade solid (TopoDS_Solid), the web material with every feature cut
     plugs : the plugs, each a separate solid filling its bore
     density_g_cm3 : the web material
     thickness : mm
@@ -134,37 +133,39 @@ def _tools_and_plugs(features, section):
 def body_shape(section):
     """The plain web: outline face with its bores as inner wires, extruded
     from z = 0 to the thickness in one step."""
-    import cadquery as cq
-
+    from . import occ
     from .kinds._tools import loop_wire
 
     model = getattr(section, "model", None)
     if model is not None:
-        return cq.Solid(model.shape)
+        return occ.raw(model.shape)
     outer = loop_wire(section.outer.oriented(True))
     inner = [loop_wire(b.oriented(False)) for b in section.bores]
-    return cq.Solid.extrudeLinear(outer, inner, cq.Vector(0, 0, float(section.thickness)))
+    return occ.prism(outer, inner, height=float(section.thickness))
 
 
 def _one_solid(shape, *, name: str):
     """The single solid of a cut result, or VerificationFailed."""
-    import cadquery as cq
+    from . import occ
 
-    solids = shape.Solids()
-    if len(solids) != 1 or not shape.isValid():
+    solids = occ.solids(shape)
+    valid = occ.is_valid(shape)
+    if len(solids) != 1 or not valid:
         raise VerificationFailed(f"web {name}: the kernel's cut gave {len(solids)} solid(s), "
-                                 f"valid={shape.isValid()}; expected one valid solid")
-    return cq.Solid(solids[0].wrapped)
+                                 f"valid={valid}; expected one valid solid")
+    return solids[0]
 
 
 def _cleaned(shape):
     """clean() (merge coplanar faces) kept only if valid and of the same volume."""
+    from . import occ
+
     try:
-        cleaned = shape.clean()
+        cleaned = occ.cleaned(shape)
     except Exception:  # the kernel can fail here; the raw cut is still right
         return shape
-    v0, v1 = shape.Volume(), cleaned.Volume()
-    if cleaned.isValid() and abs(v1 - v0) <= _CLEAN_REL * abs(v0):
+    v0, v1 = occ.volume(shape), occ.volume(cleaned)
+    if occ.is_valid(cleaned) and abs(v1 - v0) <= _CLEAN_REL * abs(v0):
         return cleaned
     return shape
 
@@ -196,8 +197,10 @@ def build_web(section, features=(), *, name: str, min_wall: float = 0.0, pin_wal
     body = body_shape(section)
     plugs: list[PlugSolid] = []
     if features:
+        from . import occ
+
         tools, plugs = _tools_and_plugs(features, section)
-        body = _one_solid(body.cut(*tools), name=name)
+        body = _one_solid(occ.cut(body, tools), name=name)
         if clean:
             body = _one_solid(_cleaned(body), name=name)
     return WebSolid(name=name, body=body, density_g_cm3=float(section.density_g_cm3), thickness=t,
@@ -216,9 +219,9 @@ def crank_assembly(web_a: WebSolid, web_b: WebSolid, *, gap_mm: float):
     shapes, and a STEP writer merges two placements of one shape into one
     product (a crank file of two alike webs then held only web b).
     """
-    import cadquery as cq
-    from OCP.BRepBuilderAPI import BRepBuilderAPI_Transform
     from OCP.gp import gp_Ax1, gp_Dir, gp_Pnt, gp_Trsf, gp_Vec
+
+    from . import occ
 
     if not gap_mm >= 0:
         raise BadInput(f"crank gap: must be >= 0 mm, got {gap_mm}")
@@ -229,11 +232,6 @@ def crank_assembly(web_a: WebSolid, web_b: WebSolid, *, gap_mm: float):
     shift.SetTranslation(gp_Vec(0, 0, -float(gap_mm)))                    # inner face z = 0 -> -gap
     placed = shift.Multiplied(turn)
 
-    def turned(shape):
-        raw = shape.wrapped if hasattr(shape, "wrapped") else shape
-        maker = BRepBuilderAPI_Transform(raw, placed, True)   # True: copy the geometry
-        return cq.Shape.cast(maker.Shape())
-
     out = [(crank_solid_name(web_a.name, n), s, d) for n, s, d in web_a.solids()]
-    out += [(crank_solid_name(web_b.name, n), turned(s), d) for n, s, d in web_b.solids()]
+    out += [(crank_solid_name(web_b.name, n), occ.transformed(s, placed), d) for n, s, d in web_b.solids()]
     return out

@@ -45,9 +45,6 @@ UNBALANCE_LENGTH_MM = 1.0
 GPROP_EPS = 1e-11
 
 
-def _shape(obj):
-    return obj.wrapped if hasattr(obj, "wrapped") else obj
-
 
 def solid_massprops(shape, density_g_cm3: float) -> MassProps:
     """Exact mass properties of one solid of uniform density (OpenCascade GProp).
@@ -60,10 +57,12 @@ def solid_massprops(shape, density_g_cm3: float) -> MassProps:
     from OCP.BRepGProp import BRepGProp
     from OCP.GProp import GProp_GProps
 
+    from . import occ
+
     props = GProp_GProps()
     # with a relative error bound: GProp's default integration leaves ~3e-7 of the volume on faces
     # trimmed by the curves where two cylinders meet (a radial hole in a round rim)
-    BRepGProp.VolumeProperties_s(_shape(shape), props, GPROP_EPS)
+    BRepGProp.VolumeProperties_s(occ.raw(shape), props, GPROP_EPS)
     volume = props.Mass()
     if not volume > 0:
         raise VerificationFailed(f"a solid has volume {volume} mm^3; the B-rep is not a closed solid")
@@ -80,8 +79,10 @@ def surface_area(shape) -> float:
     from OCP.BRepGProp import BRepGProp
     from OCP.GProp import GProp_GProps
 
+    from . import occ
+
     props = GProp_GProps()
-    BRepGProp.SurfaceProperties_s(_shape(shape), props)
+    BRepGProp.SurfaceProperties_s(occ.raw(shape), props)
     return props.Mass()
 
 
@@ -190,8 +191,10 @@ def _curved_faces(shape):
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
 
+    from . import occ
+
     out = []
-    explorer = TopExp_Explorer(_shape(shape), TopAbs_FACE)
+    explorer = TopExp_Explorer(occ.raw(shape), TopAbs_FACE)
     while explorer.More():
         face = TopoDS.Face_s(explorer.Current())
         explorer.Next()

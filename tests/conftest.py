@@ -179,6 +179,14 @@ def make_job(tmp_path):
     return _make
 
 
+def as_cq(shape):
+    """geomgen's solid (a plain OpenCascade shape) as a cadquery Shape: the tests ask cadquery, a library
+    independent of geomgen's own kernel calls, for faces, boxes, booleans and validity."""
+    import cadquery as cq
+
+    return cq.Shape.cast(shape.wrapped if hasattr(shape, "wrapped") else shape)
+
+
 # ------------------------------------------------------------------ the kernel guard
 #: top-level packages of the CAD kernel; loading either costs seconds and is what `-m "not cad"` avoids
 KERNEL = ("cadquery", "OCP")

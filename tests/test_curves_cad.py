@@ -21,6 +21,8 @@ from geomgen.section import outline_web
 from geomgen.solid import build_web
 from geomgen.verify import solid_massprops
 
+from conftest import as_cq
+
 pytestmark = pytest.mark.cad
 
 STEEL = 7.85
@@ -65,7 +67,7 @@ def test_spline_web_step_is_small_and_exact(tmp_path):
     section = section_of(tmp_path)
     hole = Hole(x=25.0, y=-30.0, diameter=10.0, depth=8.0, face="outer")
     web = build_web(section, (hole,), name="a")
-    faces = [f.geomType() for f in web.body.Faces()]
+    faces = [f.geomType() for f in as_cq(web.body).Faces()]
     assert "EXTRUSION" in faces and len(faces) < 40          # one face per spline span, not thousands
     step = write_step([(n, s) for n, s, _ in web.solids()], tmp_path / "web-a.step")
     assert step.stat().st_size < 1_000_000                   # it was 21 MB as 5000 flat faces
@@ -102,7 +104,7 @@ def test_spline_web_mesh_is_closed(tmp_path):
     assert mesh.is_watertight
     exact = solid_massprops(body, STEEL).volume
     # the mesh lies inside the curved faces by at most the chord, 0.01 mm, over their area
-    curved = sum(f.Area() for f in body.Faces() if f.geomType() != "PLANE")
+    curved = sum(f.Area() for f in as_cq(body).Faces() if f.geomType() != "PLANE")
     assert 0 <= exact - mesh.volume <= 0.01 * curved
 
 

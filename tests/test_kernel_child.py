@@ -27,7 +27,7 @@ _ENTRY = (
     "import os, sys\n"
     "real_exit = os._exit\n"
     "def leave(code):\n"
-    "    sys.stderr.write('parent loaded the kernel: %s\\n' % ('cadquery' in sys.modules))\n"
+    "    sys.stderr.write('parent loaded the kernel: %s\\n' % ('OCP' in sys.modules))\n"
     "    sys.stderr.flush()\n"
     "    real_exit(code)\n"
     "os._exit = leave\n"

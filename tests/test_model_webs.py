@@ -23,6 +23,8 @@ from pathlib import Path
 
 import pytest
 
+from conftest import as_cq
+
 pytestmark = pytest.mark.cad
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
@@ -242,9 +244,7 @@ def _mesh_bound(shape) -> tuple[float, float]:
     within 2^-24 of its size (IEEE 754 binary32), so every face may move by that much more: a layer of
     sqrt(3) 2^-24 * reach over the whole surface.  That volume lies at most `reach` (the farthest point's
     distance from the origin) away, which bounds the first moment."""
-    import cadquery as cq
-
-    shape = cq.Shape.cast(shape.wrapped if hasattr(shape, "wrapped") else shape)
+    shape = as_cq(shape)
     curved = sum(f.Area() for f in shape.Faces() if f.geomType() != "PLANE")
     bb = shape.BoundingBox()
     reach = math.sqrt(max(abs(bb.xmin), bb.xmax) ** 2 + max(abs(bb.ymin), bb.ymax) ** 2
@@ -284,7 +284,7 @@ def test_prism_web_is_the_parametric_web(mk, webs):
     v0, c0 = mk.expected("prism")
     assert moments.area * 18.0 == pytest.approx(v0, rel=1e-12)
     assert (moments.sx / moments.area, moments.sy / moments.area) == pytest.approx(c0[:2], abs=1e-12)
-    theirs, mine = body_shape(section), webs["prism"]
+    theirs, mine = as_cq(body_shape(section)), webs["prism"]
     assert mine.cut(theirs).Volume() <= 1e-9 * v0
     assert theirs.cut(mine).Volume() <= 1e-9 * v0
     _assert_props(_gprops(theirs), (v0, c0), 1e-9)

@@ -18,7 +18,7 @@ from geomgen.kinds import Radial, cylinder_massprops
 from geomgen.loops import Loop, circle
 from geomgen.section import WebSection, outline_web, parametric_web
 
-from conftest import minimal_job_dict, toml_dumps
+from conftest import as_cq, minimal_job_dict, toml_dumps
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 STEEL = 7.85
@@ -90,7 +90,7 @@ def _brep_removed(section, hole, density):
 
     from geomgen.solid import body_shape
 
-    common = body_shape(section).intersect(hole.tool(section.thickness))
+    common = as_cq(body_shape(section)).intersect(as_cq(hole.tool(section.thickness)))
     props = GProp_GProps()
     BRepGProp.VolumeProperties_s(common.wrapped, props, 1e-10)
     c = props.CentreOfMass()

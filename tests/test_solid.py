@@ -21,6 +21,8 @@ from geomgen.features import Hole, Plug, Pocket
 from geomgen.massprops import MassProps
 from geomgen.section import parametric_web
 
+from conftest import as_cq
+
 pytestmark = pytest.mark.cad
 
 RHO = 7.85          # web, g/cm^3
@@ -139,28 +141,28 @@ def test_holes_and_plugs_volume_and_com_closed_form(holes_web):
 def test_plugs_fill_their_bores_without_overlap(holes_web):
     # OpenCascade boolean common: body and plug share faces but no volume
     for plug in holes_web.plugs:
-        assert holes_web.body.intersect(plug.shape).Volume() < 1e-6
+        assert as_cq(holes_web.body).intersect(as_cq(plug.shape)).Volume() < 1e-6
     # together they are the web with only the holes cut (the bore is filled exactly)
     v0, _ = plain_web_moments()
     v_holes, _ = removed_moments(HOLES)
-    total = holes_web.body.Volume() + sum(p.shape.Volume() for p in holes_web.plugs)
+    total = as_cq(holes_web.body).Volume() + sum(as_cq(p.shape).Volume() for p in holes_web.plugs)
     assert total == pytest.approx(v0 - v_holes, rel=1e-9)
 
 
 def test_bounding_box_in_mm_and_contract_frame(holes_web):
     import cadquery as cq
 
-    bb = holes_web.body.BoundingBox()
+    bb = as_cq(holes_web.body).BoundingBox()
     # disc of 130 mm from z = 0 (inner face) to 18 mm (outer face); OCC pads boxes by ~1e-7
     assert (bb.xmin, bb.xmax, bb.ymin, bb.ymax) == pytest.approx((-65, 65, -65, 65), abs=1e-3)
     assert (bb.zmin, bb.zmax) == pytest.approx((0.0, T), abs=1e-3)
     # the pin bore is on +Y: its centre is empty, the mirror point on -Y is web material
-    assert not holes_web.body.isInside(cq.Vector(0, 0.5 * STROKE, 0.5 * T))
-    assert holes_web.body.isInside(cq.Vector(0, -0.5 * STROKE + 20, 0.5 * T))
+    assert not as_cq(holes_web.body).isInside(cq.Vector(0, 0.5 * STROKE, 0.5 * T))
+    assert as_cq(holes_web.body).isInside(cq.Vector(0, -0.5 * STROKE + 20, 0.5 * T))
     # the outer-face blind hole opens at z = T and its point stays above the inner face
     h = HOLES[0]
-    assert not holes_web.body.isInside(cq.Vector(h.x, h.y, T - 0.5 * h.depth))
-    assert holes_web.body.isInside(cq.Vector(h.x, h.y, T - h.depth - half_angle_len(h.diameter) - 0.5))
+    assert not as_cq(holes_web.body).isInside(cq.Vector(h.x, h.y, T - 0.5 * h.depth))
+    assert as_cq(holes_web.body).isInside(cq.Vector(h.x, h.y, T - h.depth - half_angle_len(h.diameter) - 0.5))
 
 
 def test_kidney_pockets_closed_form_sharp_corners():
@@ -205,8 +207,8 @@ def test_cleaned_shape_keeps_volume(holes_web):
 
     raw = build_web(section(), HOLES, name="raw", clean=False)
     cleaned = build_web(section(), HOLES, name="clean", clean=True)
-    assert cleaned.body.isValid()
-    assert cleaned.body.Volume() == pytest.approx(raw.body.Volume(), rel=1e-9)
+    assert as_cq(cleaned.body).isValid()
+    assert as_cq(cleaned.body).Volume() == pytest.approx(as_cq(raw.body).Volume(), rel=1e-9)
 
 
 # -- refusals: checked geometrically with shapely before the kernel is used ----

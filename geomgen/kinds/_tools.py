@@ -1,15 +1,15 @@
 """The cutting tools of the feature kinds: the one place the kinds meet the CAD kernel.
 
-Imported only inside a kind's `tool()` / `filler()`, so the maths never loads cadquery.  Every tool
-overshoots the face it enters by OVERSHOOT mm, so the cut leaves no sliver.
+Imported only inside a kind's `tool()` / `filler()`, so the maths never loads the kernel.  Every tool is
+an OpenCascade shape built through geomgen.occ and overshoots the face it enters by OVERSHOOT mm, so the cut
+leaves no sliver.
 """
 
 from __future__ import annotations
 
 import math
 
-import cadquery as cq
-
+from .. import occ
 from ..loops import Arc, EllipseArc, Line, Loop, Spline
 
 OVERSHOOT = 1.0
@@ -22,7 +22,6 @@ def spline_edges(seg: Spline, z: float = 0.0) -> list:
     integration (GProp) over a face swept from a many-span B-spline strays by some 1e-4 of the volume
     (measured on a 16-point fit spline rim), over the faces of its spans it agrees with the area
     moments to 1e-12.  A spline of one span is halved, so no edge closes on itself."""
-    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge
     from OCP.Geom import Geom_BezierCurve
     from OCP.gp import gp_Pnt
     from OCP.TColgp import TColgp_Array1OfPnt
@@ -46,7 +45,7 @@ def spline_edges(seg: Spline, z: float = 0.0) -> list:
             curve = Geom_BezierCurve(poles, weights)
         else:
             curve = Geom_BezierCurve(poles)
-        edges.append(cq.Edge(BRepBuilderAPI_MakeEdge(curve).Edge()))
+        edges.append(occ.edge_of(curve))
     return edges
 
 
@@ -56,7 +55,6 @@ def ellipse_edges(seg: EllipseArc, z: float = 0.0) -> list:
     over for a clockwise arc), so an edge's parameter is the arc's own t.  Quarter turns: GProp over
     the face swept from one closed ellipse edge puts its centre of mass 2.6e-4 mm off (measured on a
     24 x 12 mm ellipse), over quarter-turn faces it is exact to round-off."""
-    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge
     from OCP.Geom import Geom_Ellipse
     from OCP.gp import gp_Ax2, gp_Dir, gp_Elips, gp_Pnt
 
@@ -65,31 +63,30 @@ def ellipse_edges(seg: EllipseArc, z: float = 0.0) -> list:
     curve = Geom_Ellipse(gp_Elips(frame, a, b))
     parts = max(1, math.ceil(seg.sweep / (0.5 * math.pi) - 1e-9))
     cuts = [seg.t0 + seg.sweep * i / parts for i in range(parts)] + [seg.t1]
-    return [cq.Edge(BRepBuilderAPI_MakeEdge(curve, cuts[i], cuts[i + 1]).Edge()) for i in range(parts)]
+    return [occ.edge_of(curve, cuts[i], cuts[i + 1]) for i in range(parts)]
 
 
 def loop_wire(loop: Loop, z: float = 0.0):
-    """A cadquery Wire of the loop's exact segments at height z (mm): lines, circular arcs, the spans
+    """The wire of the loop's exact segments at height z (mm): lines, circular arcs, the spans
     of splines and ellipse edges."""
     edges = []
     for seg in loop.segments:
         if isinstance(seg, Line):
-            edges.append(cq.Edge.makeLine(cq.Vector(*seg.start, z), cq.Vector(*seg.end, z)))
+            edges.append(occ.line((*seg.start, z), (*seg.end, z)))
         elif isinstance(seg, Spline):
             edges.extend(spline_edges(seg, z))
         elif isinstance(seg, EllipseArc):
             edges.extend(ellipse_edges(seg, z))
         elif isinstance(seg, Arc) and abs(seg.sweep_deg) >= 360.0 - 1e-9:
-            edges.append(cq.Edge.makeCircle(seg.radius, cq.Vector(*seg.center, z)))
+            edges.append(occ.circle(seg.radius, (*seg.center, z)))
         else:
-            edges.append(cq.Edge.makeThreePointArc(cq.Vector(*seg.start, z), cq.Vector(*seg.mid, z),
-                                                   cq.Vector(*seg.end, z)))
-    return cq.Wire.assembleEdges(edges)
+            edges.append(occ.arc_through((*seg.start, z), (*seg.mid, z), (*seg.end, z)))
+    return occ.wire(edges)
 
 
 def prism(loop: Loop, z0: float, z1: float):
     """The loop extruded from z0 to z1."""
-    return cq.Solid.extrudeLinear(loop_wire(loop.oriented(True), z0), [], cq.Vector(0, 0, z1 - z0))
+    return occ.prism(loop_wire(loop.oriented(True), z0), height=z1 - z0)
 
 
 def blind_range(face: str, thickness: float, reach: float) -> tuple[float, float]:
@@ -104,7 +101,7 @@ def drill(*, x: float, y: float, diameter: float, depth: float, point_length: fl
     """The drill's swept volume: a revolved profile of shank and point cone (or a through cylinder)."""
     r = 0.5 * diameter
     if through:
-        return cq.Solid.makeCylinder(r, thickness + 2 * OVERSHOOT, cq.Vector(x, y, -OVERSHOOT))
+        return occ.cylinder(r, thickness + 2 * OVERSHOOT, (x, y, -OVERSHOOT))
     sign = -1.0 if face == "outer" else 1.0       # direction of feed
     z_face = thickness if face == "outer" else 0.0
     z_entry = z_face - sign * OVERSHOOT
@@ -113,8 +110,7 @@ def drill(*, x: float, y: float, diameter: float, depth: float, point_length: fl
     # profile in the plane through the hole axis, parallel to XZ
     pts = [(x, y, z_entry), (x + r, y, z_entry), (x + r, y, z_shoulder)]
     pts.append((x, y, z_tip) if point_length > 0 else (x, y, z_shoulder))
-    profile = cq.Wire.makePolygon([cq.Vector(*p) for p in pts], close=True)
-    return cq.Solid.revolve(profile, [], 360.0, cq.Vector(x, y, 0), cq.Vector(x, y, 1))
+    return occ.revolved(occ.polygon(pts), axis_point=(x, y, 0.0), axis_dir=(0.0, 0.0, 1.0))
 
 
 def _plug_span(*, length: float, face: str, thickness: float) -> tuple[float, float, bool]:
@@ -128,13 +124,13 @@ def plug_bore_tool(*, x: float, y: float, diameter: float, length: float, face: 
     """The flat-bottomed (or through) bore a plug fills."""
     z0, reach, through = _plug_span(length=length, face=face, thickness=thickness)
     lo, hi = (-OVERSHOOT, thickness + OVERSHOOT) if through else blind_range(face, thickness, reach)
-    return cq.Solid.makeCylinder(0.5 * diameter, hi - lo, cq.Vector(x, y, lo))
+    return occ.cylinder(0.5 * diameter, hi - lo, (x, y, lo))
 
 
 def plug_filler(*, x: float, y: float, diameter: float, length: float, face: str, thickness: float):
     """The plug itself: flush with its face, exactly the bore's volume inside the web."""
     z0, reach, _ = _plug_span(length=length, face=face, thickness=thickness)
-    return cq.Solid.makeCylinder(0.5 * diameter, reach, cq.Vector(x, y, z0))
+    return occ.cylinder(0.5 * diameter, reach, (x, y, z0))
 
 
 def radial_drill(*, angle_deg: float, z: float, start_s: float, shoulder_s: float, diameter: float,
@@ -146,9 +142,9 @@ def radial_drill(*, angle_deg: float, z: float, start_s: float, shoulder_s: floa
     r = 0.5 * diameter
     length = start_s - shoulder_s
     pts = [(0.0, 0.0, 0.0), (r, 0.0, 0.0), (r, 0.0, length), (0.0, 0.0, length + point_length)]
-    profile = cq.Wire.makePolygon([cq.Vector(*p) for p in pts], close=True)
-    body = cq.Solid.revolve(profile, [], 360.0, cq.Vector(0, 0, 0), cq.Vector(0, 0, 1))
-    body = body.rotate(cq.Vector(0, 0, 0), cq.Vector(1, 0, 0), 90.0)
-    body = body.rotate(cq.Vector(0, 0, 0), cq.Vector(0, 0, 1), angle_deg)
+    origin = (0.0, 0.0, 0.0)
+    body = occ.revolved(occ.polygon(pts), axis_point=origin, axis_dir=(0.0, 0.0, 1.0))
+    body = occ.rotated(body, axis_point=origin, axis_dir=(1.0, 0.0, 0.0), angle_deg=90.0)
+    body = occ.rotated(body, axis_point=origin, axis_dir=(0.0, 0.0, 1.0), angle_deg=angle_deg)
     a = math.radians(angle_deg)
-    return body.translate(cq.Vector(-math.sin(a) * start_s, math.cos(a) * start_s, z))
+    return occ.translated(body, (-math.sin(a) * start_s, math.cos(a) * start_s, z))

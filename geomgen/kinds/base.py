@@ -202,7 +202,7 @@ class FeatureKind(ABC):
 
     @abstractmethod
     def tool(self, thickness: float):
-        """The cadquery solid this feature cuts from the web."""
+        """The solid (an OpenCascade shape, built in kinds/_tools.py) this feature cuts from the web."""
         ...
 
     def filler(self, thickness: float):
