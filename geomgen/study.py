@@ -129,7 +129,9 @@ def study(
     peak = _peak_info(fine, magnitude, fine_f, tilt)
 
     sweep = balance.balance_factor_sweep(balancer_share=share, samples=PEAK_SAMPLES, **common)
-    sweep_free = balance.balance_factor_sweep(balancer_share=0.0, samples=PEAK_SAMPLES, **common)
+    # without a balancer the two sweeps are one
+    sweep_free = sweep if share == 0.0 else balance.balance_factor_sweep(balancer_share=0.0, samples=PEAK_SAMPLES,
+                                                                         **common)
 
     target = balance.web_target(
         m_rotating=m_rot, m_crank_parts=m_parts, m_reciprocating=m_recip, balance_factor=bf, crank_radius=r
