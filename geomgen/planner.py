@@ -251,9 +251,13 @@ class Clearance:
                 self.terms.append(("out_poly", shapely.Polygon(zone.points), 0.0))
             else:
                 self.terms.append(("out_circle", zone.center, 0.5 * zone.diameter))
+        #: per flattened outline, what bounds its distance from below cheaply (`_far`)
+        self._near = {}
         for kind, geom, _ in self.terms:
             if kind.endswith("poly"):
                 shapely.prepare(geom)
+                if kind == "in_poly":     # no point of the ring is nearer the crank axis than this
+                    self._near[id(geom)] = shapely.distance(shapely.Point(0.0, 0.0), geom.exterior)
 
     def _add_out(self, loop, margin):
         c = loop.as_circle()
@@ -263,23 +267,40 @@ class Clearance:
             self.terms.append(("out_poly", loop.oriented(True).polygon(self.CHORD), margin + self.CHORD))
 
     def __call__(self, xs, ys) -> np.ndarray:
+        """The clearance at each point: exact where it is positive; where it is not, some value <= 0 (a
+        point outside the region is out, by however much)."""
         xs, ys = np.asarray(xs, dtype=float), np.asarray(ys, dtype=float)
         out = np.full(xs.shape, np.inf)
+        # the circles first (exact and quick): a flattened ring then needs measuring (shapely, slow) only
+        # at the points where it can be the nearest limit
         for kind, geom, value in self.terms:
             if kind == "in_circle":
-                c = value - np.hypot(xs - geom[0], ys - geom[1])
+                out = np.minimum(out, value - np.hypot(xs - geom[0], ys - geom[1]))
             elif kind == "out_circle":
-                c = np.hypot(xs - geom[0], ys - geom[1]) - value
-            else:
-                inside = shapely.contains_xy(geom, xs, ys)
-                # only points still in the running need a distance: the rest are out already
-                wanted = (inside if kind == "in_poly" else ~inside) & (out > 0)
-                c = np.full(xs.shape, -1.0)
-                if wanted.any():
-                    dist = shapely.distance(geom.exterior, shapely.points(xs[wanted], ys[wanted]))
-                    c[wanted] = dist - value
+                out = np.minimum(out, np.hypot(xs - geom[0], ys - geom[1]) - value)
+        for kind, geom, value in self.terms:
+            if not kind.endswith("poly"):
+                continue
+            inside = shapely.contains_xy(geom, xs, ys)
+            # only points still in the running need a distance: the rest are out already
+            running = (inside if kind == "in_poly" else ~inside) & (out > 0)
+            c = np.where(running, np.inf, -1.0)
+            # and of those only the ones where the ring may come nearer than what is nearest so far
+            wanted = running & ~(self._far(kind, geom, xs, ys) - value > out + 1e-9)
+            if wanted.any():
+                dist = shapely.distance(geom.exterior, shapely.points(xs[wanted], ys[wanted]))
+                c[wanted] = dist - value
             out = np.minimum(out, c)
         return out
+
+    def _far(self, kind, geom, xs, ys) -> np.ndarray:
+        """A lower bound of each point's distance to the ring, mm: for the outline, the ring's least
+        distance from the crank axis less the point's (triangle inequality); for a ring the point lies
+        outside of, its distance to the ring's bounding box."""
+        if kind == "in_poly":
+            return self._near[id(geom)] - np.hypot(xs, ys)
+        x0, y0, x1, y1 = geom.bounds
+        return np.hypot(np.maximum(np.maximum(x0 - xs, xs - x1), 0.0), np.maximum(np.maximum(y0 - ys, ys - y1), 0.0))
 
     def r_max(self) -> float:
         kind, geom, value = self.terms[0]
