@@ -185,6 +185,10 @@ def run() -> None:
     from . import kernel_child
 
     if len(sys.argv) > 1 and sys.argv[1] in KERNEL_COMMANDS:
+        # numpy, shapely and geomgen's own maths are loaded once, here, before the fork: the child (and the
+        # mesh helper it forks in turn) finds them in memory and goes straight to its own libraries
+        from . import pipeline, verify  # noqa: F401
+
         kernel_child.start()          # the kernel loads in a child process while this one plans
     try:
         code = main()

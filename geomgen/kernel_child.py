@@ -13,7 +13,8 @@ The child is a speed-up, never a dependency: if it cannot be forked, or dies, or
 anything (a wall the solid check refuses, a verification that fails), or the webs cannot be pickled (a
 3D model web holds kernel shapes), the parent does the work itself and so reports any error exactly
 as it would have.  The child writes nothing but its own temporary folder, prints nothing (its standard
-streams go to /dev/null), and is killed when the parent is done with it, refuses the job or exits.
+streams go to /dev/null), and is killed, with the mesh helper it forked (they share a process group),
+when the parent is done with it, refuses the job or exits.
 
 Only the console entry forks; `cli.main` and the Python API run in one process as before.
 """
@@ -52,9 +53,13 @@ class KernelChild:
         ans_r, ans_w = os.pipe()
         pid = os.fork()
         if pid == 0:                                   # the child: never returns
+            with suppress(OSError):
+                os.setpgid(0, 0)                       # its own group, with the mesh helper it forks
             os.close(req_w)
             os.close(ans_r)
             _child(req_r, ans_w)
+        with suppress(OSError):                        # set from both sides, so it holds whichever runs first
+            os.setpgid(pid, pid)
         os.close(req_r)
         os.close(ans_w)
         self.pid: int | None = pid
@@ -84,8 +89,10 @@ class KernelChild:
         return None
 
     def release(self) -> None:
-        """Kill the child (if it still runs) and close the pipes."""
+        """Kill the child and its mesh helper (if they still run) and close the pipes."""
         if self.pid is not None:
+            with suppress(OSError):
+                os.killpg(self.pid, signal.SIGKILL)
             with suppress(OSError):
                 os.kill(self.pid, signal.SIGKILL)
             with suppress(OSError):

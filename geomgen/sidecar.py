@@ -19,6 +19,8 @@ base64 of the pickled (program, simulated moves)} -> {"ok": true, "svg": "..."};
 from __future__ import annotations
 
 import json
+import os
+import signal
 import subprocess
 import sys
 from contextlib import contextmanager, suppress
@@ -33,9 +35,11 @@ _ACTIVE: Sidecar | None = None
 class Sidecar:
     """The helper process, started at once; its imports run while the caller works."""
 
-    def __init__(self) -> None:
-        self.proc = subprocess.Popen([sys.executable, "-m", "geomgen.sidecar"], stdin=subprocess.PIPE,
-                                     stdout=subprocess.PIPE, stderr=subprocess.DEVNULL, text=True, bufsize=1)
+    def __init__(self, *, forked: bool = False) -> None:
+        self.proc: subprocess.Popen | _Forked = (
+            _Forked() if forked else
+            subprocess.Popen([sys.executable, "-m", "geomgen.sidecar"], stdin=subprocess.PIPE,
+                             stdout=subprocess.PIPE, stderr=subprocess.DEVNULL, text=True, bufsize=1))
         #: request lines sent ahead whose answers are not read yet, in the order sent (answers come back
         #: in that order), and answers read but not yet asked for
         self._pending: list[str] = []
@@ -138,6 +142,67 @@ class Sidecar:
             self.proc.kill()
 
 
+class _Forked:
+    """The helper as a fork of the calling process, with the face of `subprocess.Popen` that `Sidecar` uses.
+
+    geomgen.kernel_child's child forks its helper this way before it loads the kernel: numpy and geomgen's
+    own modules are already in memory, so the helper goes straight to trimesh (a fresh interpreter would
+    spend a fifth of a second on them first, on a core the kernel's import needs).  The helper keeps only
+    its two pipes (as standard input and output) and closes every other descriptor it was given, so the
+    caller's own pipes still see their end when the caller closes them."""
+
+    def __init__(self) -> None:
+        req_r, req_w = os.pipe()
+        ans_r, ans_w = os.pipe()
+        pid = os.fork()
+        if pid == 0:                                   # the helper: never returns
+            try:
+                os.dup2(req_r, 0)
+                os.dup2(ans_w, 1)
+                try:
+                    open_fds = [int(n) for n in os.listdir("/proc/self/fd")]
+                except OSError:
+                    open_fds = list(range(3, 256))
+                for fd in open_fds:
+                    if fd > 2:
+                        with suppress(OSError):
+                            os.close(fd)
+                sys.stdin = open(0, encoding="utf-8", closefd=False)  # noqa: SIM115  (the helper's whole life)
+                sys.stdout = open(1, "w", encoding="utf-8", closefd=False)  # noqa: SIM115
+                _serve(charts=False)
+                sys.stdout.flush()
+            finally:
+                os._exit(0)
+        os.close(req_r)
+        os.close(ans_w)
+        self.pid = pid
+        self.returncode: int | None = None
+        self.stdin = open(req_w, "w", encoding="utf-8", buffering=1)  # noqa: SIM115  (closed by Sidecar.close)
+        self.stdout = open(ans_r, encoding="utf-8")  # noqa: SIM115  (closed by Sidecar._drain)
+
+    def poll(self) -> int | None:
+        if self.returncode is None:
+            with suppress(ChildProcessError):
+                pid, status = os.waitpid(self.pid, os.WNOHANG)
+                if pid:
+                    self.returncode = os.waitstatus_to_exitcode(status)
+        return self.returncode
+
+    def wait(self, timeout: float | None = None) -> int:
+        import time
+
+        end = None if timeout is None else time.monotonic() + timeout
+        while self.poll() is None:
+            if end is not None and time.monotonic() > end:
+                raise subprocess.TimeoutExpired(f"sidecar {self.pid}", timeout)
+            time.sleep(0.02)
+        return self.returncode
+
+    def kill(self) -> None:
+        with suppress(OSError):
+            os.kill(self.pid, signal.SIGKILL)
+
+
 @contextmanager
 def started():
     """Run the block with a helper process at hand (or without one, if it cannot be started)."""
@@ -156,11 +221,12 @@ def started():
 
 
 def start_helper() -> Sidecar | None:
-    """Start a helper and make it the active one for the rest of this process (geomgen.kernel_child's
-    child, which owns it for its whole short life); None if it cannot be started."""
+    """Start a helper, forked from this process (see `_Forked`), and make it the active one for the rest of
+    this process (geomgen.kernel_child's child, which owns it for its whole short life); None if it cannot
+    be started.  That helper only checks meshes: the charts are drawn by the command line's own process."""
     global _ACTIVE
     try:
-        _ACTIVE = Sidecar()
+        _ACTIVE = Sidecar(forked=hasattr(os, "fork"))
     except OSError:
         _ACTIVE = None
     return _ACTIVE
@@ -188,11 +254,12 @@ def massprops_from_json(d: dict) -> MassProps:
                      np.array(d["second"], dtype=float).reshape(3, 3), float(d["volume"]))
 
 
-def _serve() -> None:
+def _serve(*, charts: bool = True) -> None:
     """The helper's side: warm the imports, then answer each request line.  trimesh (scipy under it,
     about a second) is imported by a thread while the loop already answers: a chart asked for first is
-    drawn at once, and the first mesh request waits on the import's module lock until trimesh is in."""
-    import os
+    drawn at once, and the first mesh request waits on the import's module lock until trimesh is in.
+    `charts=False` (a helper that will only be asked for meshes) leaves the chart library unloaded until
+    a chart is asked for."""
     import threading
 
     # the caller's kernel import (or its child's) is the long pole of a plan: this helper takes what CPU
@@ -206,7 +273,8 @@ def _serve() -> None:
     threading.Thread(target=warm_mesh, daemon=True).start()
     from . import plots, verify
 
-    plots.warm_up()
+    if charts:
+        plots.warm_up()
     for line in sys.stdin:
         try:
             request = json.loads(line)
