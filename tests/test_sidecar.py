@@ -69,3 +69,34 @@ def test_requests_sent_ahead_and_long_answers_do_not_deadlock():
     assert len(got["first"]["svg"]) + len(got["second"]["svg"]) > 65536
     assert got["first"]["svg"].encode() == study_svg(first)
     assert got["second"]["svg"].encode() == study_svg(second)
+
+
+def test_a_forked_helper_checks_a_mesh_and_leaves_when_its_input_ends(tmp_path):
+    # the console's kernel child forks its helper (no fresh interpreter).  On a 10 x 20 x 30 mm box of
+    # steel at 7.85 g/cm3 the helper must give the closed form: volume 6000 mm3, mass 6000 mm3 x
+    # 0.00785 g/mm3 = 47.1 g, centre of mass at the box's centre; and it must leave once its input ends
+    import threading
+
+    import trimesh
+
+    box = trimesh.creation.box(extents=(10.0, 20.0, 30.0))
+    box.apply_translation((5.0, 10.0, 15.0))
+    stl = tmp_path / "box.stl"
+    stl.write_bytes(box.export(file_type="stl"))
+    got = {}
+
+    def run():
+        side = sidecar.Sidecar(forked=True)
+        got["answer"] = side.ask({"op": "mesh", "stl": str(stl), "density": 7.85})
+        side.close()
+        got["exit"] = side.proc.wait(timeout=30)
+
+    worker = threading.Thread(target=run, daemon=True)
+    worker.start()
+    worker.join(timeout=60)
+    assert not worker.is_alive(), "the forked helper did not answer or did not leave"
+    props = sidecar.massprops_from_json(got["answer"])
+    assert props.volume == pytest.approx(6000.0, rel=1e-9)
+    assert props.mass == pytest.approx(47.1, rel=1e-9)
+    assert props.first_moment / props.mass == pytest.approx([5.0, 10.0, 15.0], rel=1e-9)
+    assert got["exit"] == 0
