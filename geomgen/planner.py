@@ -37,7 +37,6 @@ When nothing reaches the need the refusal names the most the search found.
 
 from __future__ import annotations
 
-import bisect
 import math
 from dataclasses import dataclass, field, replace
 
@@ -167,21 +166,22 @@ def _total(features, *, thickness, web_density, plug_density=None) -> MassProps:
                MassProps.zero())
 
 
-@dataclass
+@dataclass(frozen=True)
 class _Row:
-    """Feature centres on a circle, symmetric about the line at `axis` deg."""
+    """Feature centres on a circle, symmetric about the line at `axis` deg, from the line out: a centre on
+    the line (angle 0) or a mirror pair at +a and -a per group.  The arrays are read-only views of the
+    sampler's grid, made for many rows at once."""
 
     diameter: float
     radius: float
-    groups: list              # relative angles to the axis, deg, in groups: [0] or [+a, -a], from the line out
-    per: np.ndarray = None    # per group: radius x cos(angle), the lever of each of its centres
-    size: np.ndarray = None   # per group: how many centres (1 or 2)
+    angles: np.ndarray   # per group: its angle from the line, deg (0 for a centre on the line)
+    per: np.ndarray      # per group: radius x cos(angle), the lever of each of its centres
+    size: np.ndarray     # per group: how many centres (1 or 2)
 
-    def __post_init__(self):
-        if self.per is None:   # `_Sampler._make_rows` passes them, from cosines it took once per grid angle
-            self.per = np.array([self.radius * math.cos(math.radians(g[0])) for g in self.groups])
-        if self.size is None:
-            self.size = np.array([len(g) for g in self.groups])
+    @property
+    def groups(self) -> list:
+        """Per group its angles relative to the line, deg: [0.0] or [a, -a]."""
+        return [[a] if a == 0.0 else [a, -a] for a in self.angles.tolist()]
 
 
 @dataclass(frozen=True)
@@ -321,8 +321,10 @@ class _Sampler:
         self._cos = [math.cos(math.radians(a)) for a in self.rel.tolist()]
         self.radii = np.arange(self.r_max, 1.0, -RADIUS_STEP) if self.r_max > 1 else np.array([])
         self._rows = {}
-        self._lists = None
+        self._free = {}
+        self._cos_array = np.array(self._cos)
         self.all_radii, self.all_both = self.radii, np.zeros((0, len(self.rel)))
+        self.clear_both = self.all_both
         if len(self.radii):
             rr, aa = np.meshgrid(self.radii, self.rel, indexing="ij")
             self.clear_pos = self._clearance(clearance, rr, self.axis + aa)
@@ -346,42 +348,55 @@ class _Sampler:
 
     def _make_rows(self, diameter, wall, odd, max_angle):
         """For each radius, the most effective row of centres (greedy from the line outwards, each at the
-        first free angle a pitch from the last), none further than `max_angle` deg from the line."""
+        first free angle a pitch from the last), none further than `max_angle` deg from the line.
+
+        Every ring steps at once (numpy): each step takes, per ring still going, the first grid angle at
+        least a pitch on from its last centre and then on to one where the feature fits."""
         need = 0.5 * diameter + 1e-6
         chord = diameter + wall
-        if self._lists is None:   # the grid as plain lists, once: the greedy below reads it point by point
-            self._lists = (self.rel.tolist(), self.radii.tolist(), self.clear_both.tolist())
-        rel, radii, clear_both = self._lists
-        cos, n = self._cos, len(rel)
-        for i in np.nonzero((self.clear_both >= need).any(axis=1))[0].tolist():
-            radius = radii[i]
-            if chord >= 2 * radius:
-                continue
-            spacing = math.degrees(2 * math.asin(chord / (2 * radius)))
-            clear = clear_both[i]
-            groups, cosines = [], []
-            if odd:
-                if not clear[0] >= need:
-                    continue
-                groups.append([0.0])
-                cosines.append(cos[0])
-                last = 0.0
-            else:
-                last = -0.5 * spacing
-            top = max_angle - 0.5 * spacing + 1e-9
-            while True:
-                # the first free grid angle at least a pitch on: the first angle that far, then on to a free one
-                k = bisect.bisect_left(rel, last + spacing - 1e-9)
-                while k < n and not clear[k] >= need:
-                    k += 1
-                if k >= n or rel[k] > top:
-                    break
-                last = rel[k]
-                groups.append([last, -last])
-                cosines.append(cos[k])
-            if groups:
-                yield _Row(diameter, radius, groups, np.array([radius * c for c in cosines]),
-                           np.array([len(g) for g in groups]))
+        rel, n = self.rel, len(self.rel)
+        free = self._next_free(need)
+        first = free[:, 0]
+        rings = np.nonzero(((first == 0) if odd else (first < n)) & (chord < 2 * self.radii))[0]
+        if not len(rings):
+            return
+        radii = self.radii[rings].tolist()
+        # the pitch as an angle, per ring (math's functions, so the grid picks are the ones a loop would make)
+        spacing = np.array([math.degrees(2 * math.asin(chord / (2 * r))) for r in radii])
+        last = np.zeros(len(rings)) if odd else -0.5 * spacing
+        top = max_angle - 0.5 * spacing + 1e-9
+        angle_at = np.append(rel, np.inf)        # index n: no free angle left on the ring
+        going = np.ones(len(rings), dtype=bool)
+        steps = []
+        while going.any():
+            k = np.searchsorted(rel, last + spacing - 1e-9, side="left")
+            k = np.where(k < n, free[rings, np.minimum(k, n - 1)], n)
+            going &= angle_at[k] <= top
+            steps.append(np.where(going, k, -1))
+            last = np.where(going, angle_at[k], last)
+        picks = np.stack(steps, axis=1)            # per ring its grid indices, -1 once it has stopped
+        if odd:                                    # the centre on the line first, at grid index 0
+            picks = np.concatenate([np.zeros((len(rings), 1), dtype=picks.dtype), picks], axis=1)
+        counts = (picks >= 0).sum(axis=1).tolist()
+        angles = np.append(rel, 0.0)[picks]        # the -1 past each ring's end never read
+        per = np.asarray(radii)[:, None] * np.append(self._cos_array, 0.0)[picks]
+        size = np.full(picks.shape[1], 2)
+        if odd:
+            size[0] = 1
+        for arr in (angles, per, size):
+            arr.flags.writeable = False
+        for i, (radius, c) in enumerate(zip(radii, counts)):
+            if c:
+                yield _Row(diameter, radius, angles[i, :c], per[i, :c], size[:c])
+
+    def _next_free(self, need: float) -> np.ndarray:
+        """Per ring and grid angle, the index of the first angle at or after it where a feature of this
+        half-width fits (clearance >= need); the grid's length where none does.  Once per half-width."""
+        if need not in self._free:
+            n = len(self.rel)
+            idx = np.where(self.clear_both >= need, np.arange(n), n)
+            self._free[need] = np.minimum.accumulate(idx[:, ::-1], axis=1)[:, ::-1]
+        return self._free[need]
 
 
 # ------------------------------------------------------------------ holes and plugs
