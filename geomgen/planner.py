@@ -317,12 +317,11 @@ class _Sampler:
         self.axis = axis_deg
         self.r_max = clearance.r_max()
         self.rel = np.arange(0.0, 180.0 + 1e-9, ANGLE_STEP)
-        #: cos of each grid angle, as `_Row` would take it (math.cos of math.radians)
-        self._cos = [math.cos(math.radians(a)) for a in self.rel.tolist()]
+        #: cos of each grid angle (math.cos of math.radians, as a centre's lever is taken everywhere else)
+        self._cos = np.array([math.cos(math.radians(a)) for a in self.rel.tolist()])
         self.radii = np.arange(self.r_max, 1.0, -RADIUS_STEP) if self.r_max > 1 else np.array([])
         self._rows = {}
         self._free = {}
-        self._cos_array = np.array(self._cos)
         self.all_radii, self.all_both = self.radii, np.zeros((0, len(self.rel)))
         self.clear_both = self.all_both
         if len(self.radii):
@@ -378,8 +377,8 @@ class _Sampler:
         if odd:                                    # the centre on the line first, at grid index 0
             picks = np.concatenate([np.zeros((len(rings), 1), dtype=picks.dtype), picks], axis=1)
         counts = (picks >= 0).sum(axis=1).tolist()
-        angles = np.append(rel, 0.0)[picks]        # the -1 past each ring's end never read
-        per = np.asarray(radii)[:, None] * np.append(self._cos_array, 0.0)[picks]
+        angles = rel[picks]                        # the -1s past each ring's end are sliced off below
+        per = np.asarray(radii)[:, None] * self._cos[picks]
         size = np.full(picks.shape[1], 2)
         if odd:
             size[0] = 1
